@@ -1,0 +1,52 @@
+import { RecipeError, SolverError } from '@edgewise/solver2d';
+import { runCommand, RUN_USAGE } from './commands/run.ts';
+import { schemaCommand, SCHEMA_USAGE } from './commands/schema.ts';
+import { InputError, UsageError } from './errors.ts';
+
+type Command = (args: string[]) => number | Promise<number>;
+
+/** Commands by name; each module owns its options and usage line. */
+const COMMANDS: Record<string, { run: Command; usage: string }> = {
+  run: { run: runCommand, usage: RUN_USAGE },
+  schema: { run: schemaCommand, usage: SCHEMA_USAGE },
+};
+
+function usage(): string {
+  return ['usage:', ...Object.values(COMMANDS).map((c) => `  ${c.usage}`)].join('\n');
+}
+
+/** Runs one command; returns the exit code (0 ok, 2 bad input, 1 internal failure). */
+export async function main(argv: string[]): Promise<number> {
+  const [name, ...rest] = argv;
+  if (!name || name === '--help' || name === '-h' || name === 'help') {
+    process.stdout.write(`${usage()}\n`);
+    return name ? 0 : 2;
+  }
+  const command = COMMANDS[name];
+  if (!command) {
+    process.stderr.write(`edgewise: unknown command ${JSON.stringify(name)} (commands: ${Object.keys(COMMANDS).join(', ')})\n`);
+    return 2;
+  }
+  try {
+    return await command.run(rest);
+  } catch (e) {
+    if (e instanceof RecipeError) {
+      process.stderr.write(`edgewise: bad recipe: ${e.message}\n`);
+      return 2;
+    }
+    if (e instanceof UsageError || e instanceof InputError) {
+      process.stderr.write(`edgewise: ${e.message}\n`);
+      return 2;
+    }
+    if (e instanceof TypeError && (e as { code?: string }).code?.startsWith('ERR_PARSE_ARGS')) {
+      process.stderr.write(`edgewise ${name}: ${e.message} (usage: ${command.usage})\n`);
+      return 2;
+    }
+    if (e instanceof SolverError) {
+      process.stderr.write(`edgewise: solver failed: ${e.message}\n`);
+      return 1;
+    }
+    process.stderr.write(`edgewise: internal error: ${(e as Error).stack ?? e}\n`);
+    return 1;
+  }
+}

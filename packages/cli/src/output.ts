@@ -1,0 +1,30 @@
+import type { Analysis } from '@edgewise/solver2d';
+import { stackLayers } from '@edgewise/solver2d';
+import { encodeNpy, inside, writeAtomic } from './files.ts';
+
+/** The files of one run folder (contracts in DEVELOPERS.md). Returns the names written. */
+export function writeRunFolder(folder: string, analysis: Analysis): string[] {
+  const { report, field } = analysis;
+  const { mesh } = field;
+  const written: string[] = [];
+  const put = (name: string, data: string | Uint8Array) => {
+    writeAtomic(inside(folder, name), data);
+    written.push(name);
+  };
+  put('field.npy', encodeNpy(stackLayers(field), [field.names.length, mesh.nz, mesh.nx]));
+  put('x.npy', encodeNpy(mesh.x, [mesh.nx]));
+  put('z.npy', encodeNpy(mesh.z, [mesh.nz]));
+  put('contour.csv', contourCsv(analysis));
+  // The report last: its presence marks a complete folder.
+  put('report.json', `${JSON.stringify(report, null, 2)}\n`);
+  return written;
+}
+
+export function contourCsv({ report }: Analysis): string {
+  const lines = ['junction,point,xUm,zUm'];
+  report.junctions.forEach((junction, k) => {
+    let point = 0;
+    for (const line of junction.polylinesUm) for (const [x, z] of line) lines.push(`${k},${point++},${x},${z}`);
+  });
+  return `${lines.join('\n')}\n`;
+}

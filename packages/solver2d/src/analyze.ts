@@ -1,0 +1,126 @@
+import { buildField, type Field } from './field.ts';
+import {
+  columnAt, crossings, junctionIndicator, surfaceCrossing, wallPaddedGrid, zeroContours,
+  type NodeGrid, type Polyline,
+} from './junction.ts';
+import type { LedgerEntry, Simulation } from './simulate.ts';
+
+export const REPORT_SCHEMA_ID = 'edgewise.report/1';
+
+export interface WindowReport {
+  x0Um: number;
+  x1Um: number;
+  centreUm: number;
+  /** shallowest junction below the window centre, µm; null if the surface there is not inverted */
+  junctionDepthUm: number | null;
+  /** every junction below the window centre, from the surface down, µm */
+  junctionDepthsUm: number[];
+  /** reach of the surface junction beyond x0 (left) and x1 (right), under the mask, µm */
+  lateralLeftUm: number | null;
+  lateralRightUm: number | null;
+  /** mean lateral encroachment over junction depth */
+  lateralToVerticalRatio: number | null;
+  /** |net doping| at the surface at the window centre, cm^-3 */
+  surfaceConcentrationCm3: number;
+  /** each diffused species at the surface at the window centre, cm^-3 */
+  surfaceBySpeciesCm3: Record<string, number>;
+}
+
+export interface Report {
+  schema: typeof REPORT_SCHEMA_ID;
+  title: string | null;
+  substrate: { dopant: string; type: string; concentrationCm3: number };
+  crossSection: { widthUm: number; depthUm: number };
+  mesh: { columns: number; rows: number; finestXUm: number; finestZUm: number };
+  windows: WindowReport[];
+  junctions: { polylinesUm: Polyline[] }[];
+  /** dose per species per unit of open window area, cm^-2 */
+  doseCm2: Record<string, number>;
+  /** dose that entered vs dose in the silicon, per species */
+  ledger: Record<string, LedgerEntry>;
+  thermalBudgetUm2: Record<string, number>;
+  steps: { index: number; kind: string; temperatureC: number | null; minutes: number; timeSteps: number }[];
+  /** the layers of field.npy, in order */
+  field: { layers: string[]; shape: [number, number, number] };
+  warnings: string[];
+}
+
+export interface Analysis {
+  report: Report;
+  field: Field;
+  grid: NodeGrid;
+}
+
+/** Signed so that the region of the type opposite to the substrate is positive. */
+function invertedIndicator(field: Field, substrateType: string): Float64Array {
+  const f = junctionIndicator(field.donors, field.acceptors, new Float64Array(field.donors.length));
+  if (substrateType === 'donor') for (let k = 0; k < f.length; k++) f[k] = -f[k];
+  return f;
+}
+
+function rounded(v: number, digits = 6): number {
+  return Number(v.toPrecision(digits));
+}
+
+export function analyze(sim: Simulation): Analysis {
+  const { plan } = sim;
+  const { mesh, recipe } = plan;
+  const field = buildField(sim);
+  const indicator = invertedIndicator(field, plan.substrate.type);
+  const grid = wallPaddedGrid(mesh, indicator);
+  const column = new Float64Array(mesh.nz);
+  const netGrid = wallPaddedGrid(mesh, field.layers.net.data);
+  const speciesGrids = Object.fromEntries(plan.species.map((s) => [s.name, wallPaddedGrid(mesh, sim.concentration[s.name])]));
+
+  const windows: WindowReport[] = plan.mask.windows.map(([x0, x1]) => {
+    const centre = 0.5 * (x0 + x1);
+    const depths = crossings(columnAt(grid, centre, column), mesh.z);
+    const surfaceInverted = columnAt(grid, centre, column)[0] > 0;
+    const depth = surfaceInverted && depths.length > 0 ? depths[0] : null;
+    const left = surfaceInverted ? surfaceCrossing(grid, centre, -1) : null;
+    const right = surfaceInverted ? surfaceCrossing(grid, centre, 1) : null;
+    const lateralLeft = left === null ? null : x0 - left;
+    const lateralRight = right === null ? null : right - x1;
+    const lateralMean = lateralLeft !== null && lateralRight !== null ? 0.5 * (lateralLeft + lateralRight) : lateralLeft ?? lateralRight;
+    const surfaceBySpecies: Record<string, number> = {};
+    for (const s of plan.species) surfaceBySpecies[s.name] = rounded(columnAt(speciesGrids[s.name], centre, column)[0]);
+    return {
+      x0Um: x0, x1Um: x1, centreUm: centre,
+      junctionDepthUm: depth === null ? null : rounded(depth),
+      junctionDepthsUm: depths.map((d) => rounded(d)),
+      lateralLeftUm: lateralLeft === null ? null : rounded(lateralLeft),
+      lateralRightUm: lateralRight === null ? null : rounded(lateralRight),
+      lateralToVerticalRatio: depth && lateralMean !== null ? rounded(lateralMean / depth, 4) : null,
+      surfaceConcentrationCm3: rounded(Math.abs(columnAt(netGrid, centre, column)[0])),
+      surfaceBySpeciesCm3: surfaceBySpecies,
+    };
+  });
+
+  const doseCm2: Record<string, number> = {};
+  for (const s of plan.species) doseCm2[s.name] = rounded(sim.ledger[s.name].inSiliconCm2);
+
+  let finestX = Infinity;
+  for (let i = 0; i < mesh.nx; i++) finestX = Math.min(finestX, mesh.dx[i]);
+  let finestZ = Infinity;
+  for (let j = 1; j < mesh.nz; j++) finestZ = Math.min(finestZ, mesh.z[j] - mesh.z[j - 1]);
+
+  const report: Report = {
+    schema: REPORT_SCHEMA_ID,
+    title: recipe.title ?? null,
+    substrate: { ...plan.substrate },
+    crossSection: { widthUm: mesh.widthUm, depthUm: rounded(mesh.depthUm) },
+    mesh: { columns: mesh.nx, rows: mesh.nz, finestXUm: rounded(finestX, 4), finestZUm: rounded(finestZ, 4) },
+    windows,
+    junctions: zeroContours(grid).map((line) => ({ polylinesUm: [line.map(([x, z]) => [rounded(x), rounded(z)] as [number, number])] })),
+    doseCm2,
+    ledger: sim.ledger,
+    thermalBudgetUm2: Object.fromEntries(Object.entries(plan.thermalBudgetUm2).map(([k, v]) => [k, rounded(v)])),
+    steps: sim.stepRecords.map((r) => ({
+      index: r.index, kind: r.kind, temperatureC: plan.steps[r.index].temperatureC,
+      minutes: r.seconds / 60, timeSteps: r.timeSteps,
+    })),
+    field: { layers: field.names, shape: [field.names.length, mesh.nz, mesh.nx] },
+    warnings: [...plan.warnings],
+  };
+  return { report, field, grid };
+}

@@ -1,0 +1,19 @@
+export { parseRecipe, recipeSchema, RecipeError, RECIPE_SCHEMA_ID, STEP_KINDS, type Recipe, type Step } from './recipe.ts';
+export { planRecipe, DEFAULT_LIMITS, type Plan, type PlanLimits, type StepPlan } from './plan.ts';
+export { simulate, SolverError, StoppedError, openWidth, type Simulation, type SimulateOptions, type Progress } from './simulate.ts';
+export { analyze, REPORT_SCHEMA_ID, type Report, type WindowReport, type Analysis } from './analyze.ts';
+export { buildField, stackLayers, type Field } from './field.ts';
+export { BUILTIN_DOPANTS, intrinsicDiffusivityCm2PerS, type Dopant } from './dopants.ts';
+export type { Mesh } from './mesh.ts';
+export type { Polyline, Point } from './junction.ts';
+
+import { analyze, type Analysis } from './analyze.ts';
+import { planRecipe, type PlanLimits } from './plan.ts';
+import { parseRecipe } from './recipe.ts';
+import { simulate, type SimulateOptions } from './simulate.ts';
+
+/** parse → plan → simulate → analyze, for callers that want the whole job in one call. */
+export function runRecipe(input: unknown, options: SimulateOptions & { limits?: PlanLimits } = {}): Analysis {
+  const plan = planRecipe(parseRecipe(input), options.limits);
+  return analyze(simulate(plan, options));
+}

@@ -1,0 +1,202 @@
+import type { Mesh } from './mesh.ts';
+
+/**
+ * Junction finding on the node grid.
+ *
+ * The junction is where donors and acceptors balance. Concentrations span many decades, so
+ * the indicator interpolated between nodes is f = log10 N_D − log10 N_A, which is close to
+ * linear in position near a diffused junction (the log of an erfc or Gaussian tail is
+ * smooth), where N_D − N_A itself is not.
+ */
+
+/** Floor under each total before the log, cm^-3: far below any doping of interest. */
+const LOG_FLOOR = 1;
+
+export function junctionIndicator(donors: Float64Array, acceptors: Float64Array, out: Float64Array): Float64Array {
+  for (let k = 0; k < out.length; k++) {
+    out[k] = Math.log10(Math.max(donors[k], LOG_FLOOR)) - Math.log10(Math.max(acceptors[k], LOG_FLOOR));
+  }
+  return out;
+}
+
+/**
+ * The node grid of a mesh with the side walls added as columns: x is cell-centred, and zero
+ * flux through a wall means the wall value equals the first cell's, so contours and surface
+ * crossings reach the walls instead of stopping half a cell short.
+ */
+export interface NodeGrid {
+  xs: Float64Array;
+  zs: Float64Array;
+  values: Float64Array;
+  nx: number;
+  nz: number;
+}
+
+export function wallPaddedGrid(mesh: Mesh, field: Float64Array): NodeGrid {
+  const nx = mesh.nx + 2;
+  const nz = mesh.nz;
+  const xs = new Float64Array(nx);
+  xs[0] = 0;
+  xs.set(mesh.x, 1);
+  xs[nx - 1] = mesh.widthUm;
+  const values = new Float64Array(nx * nz);
+  for (let j = 0; j < nz; j++) {
+    const src = j * mesh.nx;
+    const dst = j * nx;
+    values[dst] = field[src];
+    values.set(field.subarray(src, src + mesh.nx), dst + 1);
+    values[dst + nx - 1] = field[src + mesh.nx - 1];
+  }
+  return { xs, zs: mesh.z, values, nx, nz };
+}
+
+export type Point = [number, number];
+export type Polyline = Point[];
+
+/** Position of the zero of a linear function that is a at p and b at q. */
+function zeroBetween(p: number, q: number, a: number, b: number): number {
+  return p + (q - p) * (a / (a - b));
+}
+
+/**
+ * Zero contour of `values` by marching squares on the rectilinear grid, joined into
+ * polylines (open where they meet the domain boundary, closed otherwise), in µm.
+ * Saddle cells are resolved by the mean of the four corners.
+ */
+export function zeroContours(grid: NodeGrid): Polyline[] {
+  const { xs, zs, values, nx, nz } = grid;
+  // Edge ids: horizontal edge from node (i, j) to (i+1, j) is 2·(j·nx+i); vertical to (i, j+1) is +1.
+  const point = new Map<number, Point>();
+  const edgePoint = (id: number): Point => {
+    let p = point.get(id);
+    if (p) return p;
+    const node = id >> 1;
+    const i = node % nx;
+    const j = (node - i) / nx;
+    const a = values[node];
+    if ((id & 1) === 0) p = [zeroBetween(xs[i], xs[i + 1], a, values[node + 1]), zs[j]];
+    else p = [xs[i], zeroBetween(zs[j], zs[j + 1], a, values[node + nx])];
+    point.set(id, p);
+    return p;
+  };
+  const links = new Map<number, number[]>();
+  const link = (e1: number, e2: number) => {
+    for (const [a, b] of [[e1, e2], [e2, e1]] as const) {
+      const list = links.get(a);
+      if (list) list.push(b);
+      else links.set(a, [b]);
+    }
+  };
+  for (let j = 0; j + 1 < nz; j++) {
+    for (let i = 0; i + 1 < nx; i++) {
+      const n0 = j * nx + i;
+      const v00 = values[n0], v10 = values[n0 + 1], v01 = values[n0 + nx], v11 = values[n0 + nx + 1];
+      const code = (v00 > 0 ? 1 : 0) | (v10 > 0 ? 2 : 0) | (v11 > 0 ? 4 : 0) | (v01 > 0 ? 8 : 0);
+      if (code === 0 || code === 15) continue;
+      const top = 2 * n0;
+      const bottom = 2 * (n0 + nx);
+      const left = 2 * n0 + 1;
+      const right = 2 * (n0 + 1) + 1;
+      switch (code) {
+        case 1: case 14: link(top, left); break;
+        case 2: case 13: link(top, right); break;
+        case 3: case 12: link(left, right); break;
+        case 4: case 11: link(right, bottom); break;
+        case 6: case 9: link(top, bottom); break;
+        case 7: case 8: link(left, bottom); break;
+        case 5: case 10: {
+          const centreAbove = v00 + v10 + v01 + v11 > 0;
+          // code 5: corners 00 and 11 above. If the centre is above too, they connect.
+          if ((code === 5) === centreAbove) { link(top, right); link(left, bottom); }
+          else { link(top, left); link(right, bottom); }
+          break;
+        }
+      }
+    }
+  }
+  const used = new Set<number>();
+  const walk = (start: number): Polyline => {
+    const line: Polyline = [edgePoint(start)];
+    used.add(start);
+    let current = start;
+    for (;;) {
+      const next = (links.get(current) ?? []).find((e) => !used.has(e));
+      if (next === undefined) break;
+      used.add(next);
+      line.push(edgePoint(next));
+      current = next;
+    }
+    return line;
+  };
+  const lines: Polyline[] = [];
+  for (const [edge, ends] of links) if (ends.length === 1 && !used.has(edge)) lines.push(walk(edge));
+  for (const edge of links.keys()) {
+    if (used.has(edge)) continue;
+    const loop = walk(edge);
+    loop.push(loop[0]);
+    lines.push(loop);
+  }
+  return lines;
+}
+
+/** Values of the grid along the column at x (linear between the neighbouring node columns). */
+export function columnAt(grid: NodeGrid, x: number, out: Float64Array): Float64Array {
+  const { xs, values, nx, nz } = grid;
+  let i = 0;
+  while (i + 2 < nx && xs[i + 1] < x) i++;
+  const t = Math.min(1, Math.max(0, (x - xs[i]) / (xs[i + 1] - xs[i])));
+  for (let j = 0; j < nz; j++) out[j] = (1 - t) * values[j * nx + i] + t * values[j * nx + i + 1];
+  return out;
+}
+
+/** Every depth where a column profile changes sign, from the surface down, µm. */
+export function crossings(profile: Float64Array, coordinates: Float64Array): number[] {
+  const out: number[] = [];
+  for (let k = 0; k + 1 < profile.length; k++) {
+    const a = profile[k];
+    const b = profile[k + 1];
+    if ((a > 0) !== (b > 0)) out.push(zeroBetween(coordinates[k], coordinates[k + 1], a, b));
+  }
+  return out;
+}
+
+/** Value of the surface row at x. */
+export function surfaceValueAt(grid: NodeGrid, x: number): number {
+  const { xs, values, nx } = grid;
+  let i = 0;
+  while (i + 2 < nx && xs[i + 1] < x) i++;
+  const t = Math.min(1, Math.max(0, (x - xs[i]) / (xs[i + 1] - xs[i])));
+  return (1 - t) * values[i] + t * values[i + 1];
+}
+
+/**
+ * Where the surface row first changes sign going from `from` towards `direction` (−1 left,
+ * +1 right), µm; null if it never does before the wall.
+ */
+export function surfaceCrossing(grid: NodeGrid, from: number, direction: -1 | 1): number | null {
+  const { xs, values, nx } = grid;
+  const start = surfaceValueAt(grid, from);
+  const inside = start > 0;
+  if (direction < 0) {
+    let prevX = from;
+    let prevV = start;
+    for (let i = nx - 1; i >= 0; i--) {
+      if (xs[i] >= from) continue;
+      const v = values[i];
+      if ((v > 0) !== inside) return zeroBetween(prevX, xs[i], prevV, v);
+      prevX = xs[i];
+      prevV = v;
+    }
+  } else {
+    let prevX = from;
+    let prevV = start;
+    for (let i = 0; i < nx; i++) {
+      if (xs[i] <= from) continue;
+      const v = values[i];
+      if ((v > 0) !== inside) return zeroBetween(prevX, xs[i], prevV, v);
+      prevX = xs[i];
+      prevV = v;
+    }
+  }
+  return null;
+}

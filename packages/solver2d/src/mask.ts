@@ -1,0 +1,48 @@
+import type { Mesh } from './mesh.ts';
+
+export type Window = readonly [number, number];
+
+/** A run of surface cells that are all open or all masked, [i0, i1). */
+export interface SurfaceSegment {
+  i0: number;
+  i1: number;
+  open: boolean;
+}
+
+export interface Mask {
+  /** windows as given, µm */
+  windows: readonly Window[];
+  /** 1 where the surface cell lies in a window */
+  open: Uint8Array;
+  /** the surface as alternating runs of open and masked cells */
+  segments: SurfaceSegment[];
+  /** mask edges strictly inside the cross-section, µm, ascending */
+  edges: number[];
+}
+
+/** Mask edges that are not side walls; a window that touches a wall has no edge there. */
+export function maskEdges(windows: readonly Window[], widthUm: number): number[] {
+  const edges: number[] = [];
+  for (const [x0, x1] of windows) {
+    if (x0 > 0) edges.push(x0);
+    if (x1 < widthUm) edges.push(x1);
+  }
+  return edges.sort((a, b) => a - b);
+}
+
+export function buildMask(mesh: Mesh, windows: readonly Window[]): Mask {
+  const open = new Uint8Array(mesh.nx);
+  for (let i = 0; i < mesh.nx; i++) {
+    const xc = mesh.x[i];
+    for (const [x0, x1] of windows) if (xc > x0 && xc < x1) open[i] = 1;
+  }
+  const segments: SurfaceSegment[] = [];
+  let start = 0;
+  for (let i = 1; i <= mesh.nx; i++) {
+    if (i === mesh.nx || open[i] !== open[start]) {
+      segments.push({ i0: start, i1: i, open: open[start] === 1 });
+      start = i;
+    }
+  }
+  return { windows, open, segments, edges: maskEdges(windows, mesh.widthUm) };
+}

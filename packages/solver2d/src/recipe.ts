@@ -1,0 +1,164 @@
+import { z } from 'zod';
+
+/**
+ * The recipe contract ("edgewise.recipe/1") and its validation. Every failure becomes one
+ * RecipeError naming the field (as a path like `steps[1].minutes`) and what is allowed.
+ */
+export class RecipeError extends Error {
+  constructor(readonly field: string, readonly detail: string) {
+    super(`${field}: ${detail}`);
+    this.name = 'RecipeError';
+  }
+}
+
+export const RECIPE_SCHEMA_ID = 'edgewise.recipe/1';
+
+/** Temperatures the diffusivity tables are meant for; silicon melts at 1414 °C. */
+export const TEMPERATURE_RANGE_C = [600, 1400] as const;
+/** Longest step accepted, minutes (about ten weeks). */
+export const MAX_MINUTES = 1e5;
+
+function formatNumber(v: number): string {
+  if (v === 0) return '0';
+  const a = Math.abs(v);
+  return a >= 1e5 || a < 1e-3 ? v.toExponential().replace('e+', 'e') : String(v);
+}
+
+export function describeValue(input: unknown): string {
+  if (input === undefined) return 'nothing';
+  if (input === null) return 'null';
+  if (typeof input === 'number') return Number.isNaN(input) ? 'NaN' : formatNumber(input);
+  if (typeof input === 'string') return JSON.stringify(input.length > 40 ? `${input.slice(0, 40)}…` : input);
+  if (Array.isArray(input)) return `a list of ${input.length}`;
+  if (typeof input === 'object') return 'an object';
+  return String(input);
+}
+
+type Issue = { input?: unknown };
+
+function explain(allowed: string) {
+  return (iss: Issue) => (iss.input === undefined ? `is required: ${allowed}` : `must be ${allowed} (got ${describeValue(iss.input)})`);
+}
+
+/** A finite number in a range, with one message for every way of missing it. */
+function num(unit: string, lo: number, hi: number, loExclusive = false) {
+  const allowed = `a number ${loExclusive ? 'above' : 'from'} ${formatNumber(lo)} ${loExclusive ? 'and up to' : 'to'} ${formatNumber(hi)}${unit ? ` ${unit}` : ''}`;
+  const error = explain(allowed);
+  const base = z.number({ error });
+  return (loExclusive ? base.gt(lo, { error }) : base.gte(lo, { error })).lte(hi, { error });
+}
+
+function int(lo: number, hi: number) {
+  const error = explain(`a whole number from ${lo} to ${hi}`);
+  return z.number({ error }).int({ error }).gte(lo, { error }).lte(hi, { error });
+}
+
+/** An object that rejects unknown keys, naming the ones it accepts. */
+function strict<T extends z.ZodRawShape>(shape: T) {
+  const keys = Object.keys(shape).join(', ');
+  return z.strictObject(shape, {
+    error: (iss) => {
+      if (iss.code === 'unrecognized_keys') return `unknown key ${iss.keys.map((k) => JSON.stringify(k)).join(', ')} (allowed: ${keys})`;
+      if (iss.code === 'invalid_type') return iss.input === undefined ? `is required: an object with ${keys}` : `must be an object with ${keys} (got ${describeValue(iss.input)})`;
+      return undefined;
+    },
+  });
+}
+
+const dopantName = z
+  .string({ error: explain('a dopant name (B, P, As, Sb or one defined under "dopants")') })
+  .regex(/^[A-Za-z][A-Za-z0-9_-]{0,31}$/, { error: explain('a dopant name of letters, digits, "_" or "-", starting with a letter, at most 32 long') });
+
+const concentration = num('cm^-3', 1e10, 1e22);
+const temperatureC = num('°C (the diffusivity tables cover this range)', TEMPERATURE_RANGE_C[0], TEMPERATURE_RANGE_C[1]);
+const minutes = num('minutes', 0, MAX_MINUTES, true);
+const coordinate = num('µm', 0, 1e4);
+
+const windowPair = z.tuple([coordinate, coordinate], {
+  error: explain('a window [x0, x1] of two numbers in µm'),
+});
+
+const predeposition = strict({
+  kind: z.literal('predeposition'),
+  dopant: dopantName,
+  surfaceConcentrationCm3: concentration,
+  temperatureC,
+  minutes,
+});
+
+const film = strict({
+  kind: z.literal('film'),
+  dopant: dopantName,
+  doseCm2: num('cm^-2', 0, 1e18, true),
+  temperatureC: temperatureC.optional(),
+  minutes: minutes.optional(),
+});
+
+const heat = (kind: 'drive-in' | 'anneal') => strict({ kind: z.literal(kind), temperatureC, minutes });
+
+export const STEP_KINDS = ['predeposition', 'film', 'drive-in', 'anneal'] as const;
+
+const step = z.discriminatedUnion('kind', [predeposition, film, heat('drive-in'), heat('anneal')], {
+  error: (iss) => {
+    const input = iss.input as { kind?: unknown } | undefined;
+    if (input === null || typeof input !== 'object' || Array.isArray(input)) return `must be a step object with a "kind" (got ${describeValue(input)})`;
+    return `must be one of ${STEP_KINDS.join(', ')} (got ${describeValue(input.kind)})`;
+  },
+});
+
+const userDopant = strict({
+  type: z.enum(['donor', 'acceptor'], { error: explain('"donor" or "acceptor"') }),
+  D0Cm2PerS: num('cm^2/s', 0, 1e6, true),
+  EaEv: num('eV', 0, 10, true),
+});
+
+const meshOptions = strict({
+  refine: num('(1 = default mesh)', 0.25, 8).optional(),
+  surfaceSpacingUm: num('µm', 1e-4, 100).optional(),
+  edgeSpacingUm: num('µm', 1e-4, 100).optional(),
+  maxSpacingUm: num('µm', 1e-4, 1000).optional(),
+  columns: int(8, 4000).optional(),
+  rows: int(8, 4000).optional(),
+});
+
+const numerics = strict({
+  stepGrowth: num('(ratio of successive time steps)', 1.001, 3).optional(),
+  startupSteps: int(0, 20).optional(),
+});
+
+export const recipeSchema = strict({
+  schema: z.literal(RECIPE_SCHEMA_ID, { error: explain(`"${RECIPE_SCHEMA_ID}"`) }).optional(),
+  title: z.string({ error: explain('text') }).max(500, { error: explain('text of at most 500 characters') }).optional(),
+  substrate: strict({ dopant: dopantName, concentrationCm3: num('cm^-3', 1e10, 1e21) }),
+  crossSection: strict({ widthUm: num('µm', 0, 1e4, true), depthUm: num('µm', 0, 1e3, true).optional() }),
+  mask: strict({
+    windows: z.array(windowPair, { error: explain('a list of windows [x0, x1] in µm') })
+      .min(1, { error: 'must list at least one window [x0, x1] in µm' })
+      .max(256, { error: 'must list at most 256 windows' }),
+  }),
+  dopants: z.record(dopantName, userDopant, { error: explain('an object of dopant name → { type, D0Cm2PerS, EaEv }') }).optional(),
+  mesh: meshOptions.optional(),
+  numerics: numerics.optional(),
+  steps: z.array(step, { error: explain('a list of steps') })
+    .min(1, { error: 'must list at least one step' })
+    .max(200, { error: 'must list at most 200 steps' }),
+});
+
+export type Recipe = z.infer<typeof recipeSchema>;
+export type Step = Recipe['steps'][number];
+
+function pathToField(path: readonly PropertyKey[]): string {
+  let out = '';
+  for (const p of path) out += typeof p === 'number' ? `[${p}]` : out ? `.${String(p)}` : String(p);
+  return out || 'recipe';
+}
+
+/** Validates the shape of a recipe; cross-field rules are checked when it is planned. */
+export function parseRecipe(input: unknown): Recipe {
+  const result = recipeSchema.safeParse(input);
+  if (!result.success) {
+    const issue = result.error.issues[0];
+    throw new RecipeError(pathToField(issue.path), issue.message);
+  }
+  return result.data;
+}
