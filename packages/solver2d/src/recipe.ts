@@ -126,6 +126,16 @@ const numerics = strict({
   startupSteps: int(0, 20).optional(),
 });
 
+/**
+ * A sweep carried by the recipe itself: the same values the CLI's --widths and --set take
+ * (a range "start:step:stop" or a list). Planning a single run ignores it.
+ */
+const sweepValues = z.union([z.string(), z.array(z.number())], { error: explain('a range "start:step:stop" or a list of numbers') });
+const sweep = strict({
+  widthsUm: sweepValues.optional(),
+  set: z.record(z.string(), sweepValues, { error: explain('an object of recipe path → values') }).optional(),
+});
+
 export const recipeSchema = strict({
   schema: z.literal(RECIPE_SCHEMA_ID, { error: explain(`"${RECIPE_SCHEMA_ID}"`) }).optional(),
   title: z.string({ error: explain('text') }).max(500, { error: explain('text of at most 500 characters') }).optional(),
@@ -139,6 +149,7 @@ export const recipeSchema = strict({
   dopants: z.record(dopantName, userDopant, { error: explain('an object of dopant name → { type, D0Cm2PerS, EaEv }') }).optional(),
   mesh: meshOptions.optional(),
   numerics: numerics.optional(),
+  sweep: sweep.optional(),
   steps: z.array(step, { error: explain('a list of steps') })
     .min(1, { error: 'must list at least one step' })
     .max(200, { error: 'must list at most 200 steps' }),
