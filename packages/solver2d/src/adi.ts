@@ -1,31 +1,63 @@
-import type { Mask, SurfaceSegment } from './mask.ts';
+import type { Mask } from './mask.ts';
 import type { Mesh } from './mesh.ts';
 import { factorTridiagonal } from './tridiagonal.ts';
 
 /**
  * Alternating-direction implicit stepper for ∂C/∂t = ∇·(D∇C) on the masked cross-section,
- * for one species with D uniform in space over the step (D may change between steps).
+ * for one species with D uniform in space over a time step (D may change between steps).
  *
  * Finite volumes: with Ax, Az the x and z parts of the discrete divergence (per unit D),
  *   (Ax C)_i = [g_{i+½}(C_{i+1} − C_i) − g_{i−½}(C_i − C_{i−1})] / Δx_i,  g = 1/(x_{i+1} − x_i),
  * zero flux through the side walls and the bottom, and at the surface either zero flux
- * (sealed, under the mask) or the surface node held at Cs (predeposition, in the windows).
+ * (sealed) or the surface node held at Cs (predeposition, in the windows).
  *
  * Schemes, with ν = D·τ:
- *   Peaceman–Rachford (second order):  (I − ν/2·Ax) C* = (I + ν/2·Az) Cⁿ,
+ *   Peaceman–Rachford, second order:   (I − ν/2·Ax) C* = (I + ν/2·Az) Cⁿ
  *                                       (I − ν/2·Az) Cⁿ⁺¹ = (I + ν/2·Ax) C*
- *   Douglas–Rachford (first order, strongly damped; for the first steps after a
- *   discontinuity):                     (I − ν·Ax) C* = (I + ν·Az) Cⁿ,
- *                                       (I − ν·Az) Cⁿ⁺¹ = C* − ν·Az Cⁿ
- * Both are conservative: Cⁿ⁺¹ − Cⁿ = ν·Ax C* + ν·Az C̄ with C̄ = (Cⁿ + Cⁿ⁺¹)/2 (PR) or
- * Cⁿ⁺¹ (DR), which is what the dose ledger uses to count what enters through the windows.
+ *   split implicit (one backward-Euler sweep per direction), first order and L-stable in
+ *   each direction, for the first steps after a discontinuity, where Peaceman–Rachford
+ *   would carry the stiffest modes on undamped (its amplification tends to ±1):
+ *                                       (I − ν·Ax) C* = Cⁿ,   (I − ν·Az) Cⁿ⁺¹ = C*
+ * Both are conservative: Cⁿ⁺¹ − Cⁿ = ν·Ax C* + ν·Az C̄ with C̄ = (Cⁿ + Cⁿ⁺¹)/2 or Cⁿ⁺¹,
+ * which the dose ledger uses to count what enters through the held surface.
  *
- * Memory: the field is row-major, index j·nx + i (z rows, x contiguous). The x sweep runs
- * along contiguous rows; the z sweep runs down all columns at once, one contiguous row at a
- * time, with one factorisation per column kind (open with a held surface, or sealed).
+ * Memory: the field is row-major, index j·nx + i (z rows, x contiguous); the intermediate
+ * C* is stored transposed (i·nz + j). Each half step reads lines that are contiguous in
+ * its source and writes its result transposed, so both sweeps run the same kernel along
+ * contiguous memory, four lines at a time to overlap the four Thomas recurrences.
  * Every buffer is allocated here; `step` allocates nothing.
  */
-export type Scheme = 'peaceman-rachford' | 'douglas-rachford';
+export type Scheme = 'peaceman-rachford' | 'split-implicit';
+
+/** One factorised tridiagonal matrix shared by every line of a kind (see tridiagonal.ts). */
+interface LineFactor {
+  l: Float64Array;
+  cp: Float64Array;
+  inv: Float64Array;
+}
+
+function lineFactor(n: number): LineFactor {
+  return { l: new Float64Array(n), cp: new Float64Array(n), inv: new Float64Array(n) };
+}
+
+/** Lines of one half step: which factor each uses and where values are held. */
+interface SweepSetup {
+  /** points per line */
+  n: number;
+  /** number of lines */
+  m: number;
+  free: LineFactor;
+  held: LineFactor;
+  /** 1 where the line uses the held factor */
+  kind: Uint8Array;
+  /** positions along a held line whose value is the held value */
+  heldAlong: Uint8Array;
+  /** explicit coupling to the previous and next line, per line */
+  wa: Float64Array;
+  wb: Float64Array;
+  /** the `heldAlong` of lines held at position 0 only (z columns), which blocks can take */
+  heldFirstOnly: Uint8Array | null;
+}
 
 export class AdiStepper {
   readonly nx: number;
@@ -35,28 +67,19 @@ export class AdiStepper {
   private readonly az: Float64Array;
   private readonly cz: Float64Array;
   private readonly open: Uint8Array;
-  private readonly segments: SurfaceSegment[];
   private readonly volumeX: Float64Array;
   private readonly volumeZ: Float64Array;
-  // x-sweep factorisations: every row, and the surface row with held open cells
-  private readonly xl: Float64Array;
-  private readonly xlHeld: Float64Array;
-  private readonly xcp: Float64Array;
-  private readonly xinv: Float64Array;
-  private readonly xcpHeld: Float64Array;
-  private readonly xinvHeld: Float64Array;
-  // z-sweep factorisations: sealed columns and held (open, predeposition) columns
-  private readonly zl: Float64Array;
-  private readonly zcp: Float64Array;
-  private readonly zinv: Float64Array;
-  private readonly zcpHeld: Float64Array;
-  private readonly zinvHeld: Float64Array;
-  // scratch for building the matrices
+  /** x sweep: lines are z rows; z sweep: lines are x columns */
+  private readonly xSweep: SweepSetup;
+  private readonly zSweep: SweepSetup;
+  private readonly noneHeldX: Uint8Array;
+  private readonly surfaceRowKind: Uint8Array;
+  private readonly openColumnKind: Uint8Array;
+  private readonly sealedZKind: Uint8Array;
   private readonly lo: Float64Array;
   private readonly di: Float64Array;
   private readonly up: Float64Array;
   private readonly star: Float64Array;
-  private readonly work: Float64Array;
   private readonly savedRows: Float64Array;
 
   constructor(mesh: Mesh, mask: Mask) {
@@ -64,7 +87,6 @@ export class AdiStepper {
     this.nx = nx;
     this.nz = nz;
     this.open = mask.open;
-    this.segments = mask.segments;
     this.volumeX = dx;
     this.volumeZ = dzVolume;
     this.ax = new Float64Array(nx);
@@ -83,19 +105,22 @@ export class AdiStepper {
     this.lo = new Float64Array(n);
     this.di = new Float64Array(n);
     this.up = new Float64Array(n);
-    this.xl = new Float64Array(nx);
-    this.xlHeld = new Float64Array(nx);
-    this.xcp = new Float64Array(nx);
-    this.xinv = new Float64Array(nx);
-    this.xcpHeld = new Float64Array(nx);
-    this.xinvHeld = new Float64Array(nx);
-    this.zl = new Float64Array(nz);
-    this.zcp = new Float64Array(nz);
-    this.zinv = new Float64Array(nz);
-    this.zcpHeld = new Float64Array(nz);
-    this.zinvHeld = new Float64Array(nz);
+    this.noneHeldX = new Uint8Array(nz);
+    this.surfaceRowKind = new Uint8Array(nz);
+    this.surfaceRowKind[0] = 1;
+    this.openColumnKind = mask.open;
+    this.sealedZKind = new Uint8Array(nx);
+    const zHeldAlong = new Uint8Array(nz);
+    zHeldAlong[0] = 1;
+    this.xSweep = {
+      n: nx, m: nz, free: lineFactor(nx), held: lineFactor(nx), kind: this.noneHeldX,
+      heldAlong: mask.open, wa: new Float64Array(nz), wb: new Float64Array(nz), heldFirstOnly: null,
+    };
+    this.zSweep = {
+      n: nz, m: nx, free: lineFactor(nz), held: lineFactor(nz), kind: this.sealedZKind,
+      heldAlong: zHeldAlong, wa: new Float64Array(nx), wb: new Float64Array(nx), heldFirstOnly: zHeldAlong,
+    };
     this.star = new Float64Array(nx * nz);
-    this.work = new Float64Array(nx * nz);
     this.savedRows = new Float64Array(2 * nx);
   }
 
@@ -110,6 +135,15 @@ export class AdiStepper {
       total += row * volumeZ[j];
     }
     return total;
+  }
+
+  /** True when every value of the bottom row is finite. A NaN or Inf anywhere reaches the
+   *  bottom row within one step: the z sweep's forward elimination carries it down. */
+  bottomRowFinite(c: Float64Array): boolean {
+    const base = (this.nz - 1) * this.nx;
+    let sum = 0;
+    for (let i = 0; i < this.nx; i++) sum += c[base + i];
+    return Number.isFinite(sum);
   }
 
   /**
@@ -129,163 +163,64 @@ export class AdiStepper {
   }
 
   /**
-   * Advances `c` by one step of length τ with ν = D·τ (µm²). `held` true holds the open
-   * surface cells at `surfaceValue` (predeposition); false seals the whole surface.
-   * Returns the atoms that entered through the held surface during the step (cm^-3·µm²).
+   * Advances `c` by one step with ν = D·τ (µm²). `held` true holds the open surface cells at
+   * `surfaceValue` (predeposition); false seals the whole surface. Returns the atoms that
+   * entered through the held surface during the step (cm^-3·µm²).
    */
   step(c: Float64Array, nu: number, scheme: Scheme, held: boolean, surfaceValue: number): number {
-    const nx = this.nx;
-    if (held) this.savedRows.set(c.subarray(0, 2 * nx));
-    if (scheme === 'peaceman-rachford') {
-      const half = 0.5 * nu;
-      this.factor(half, held);
-      this.sweepX(c, half, held, surfaceValue);
-      this.sweepZPeaceman(c, half, held, surfaceValue);
-    } else {
-      this.factor(nu, held);
-      this.sweepX(c, nu, held, surfaceValue);
-      this.sweepZDouglas(c, nu, held, surfaceValue);
-    }
-    return held ? this.inflow(c, nu, scheme) : 0;
+    const pr = scheme === 'peaceman-rachford';
+    const implicit = pr ? 0.5 * nu : nu;
+    const explicit = pr ? 0.5 * nu : 0;
+    if (held) this.savedRows.set(c.subarray(0, 2 * this.nx));
+    this.prepare(implicit, explicit, held);
+    sweepLines(c, this.star, this.xSweep, surfaceValue);
+    sweepLines(this.star, c, this.zSweep, surfaceValue);
+    return held ? this.inflow(c, nu, pr) : 0;
   }
 
-  /** Factorises I − β·Ax (rows) and I − β·Az (columns), sealed and held variants. */
-  private factor(beta: number, held: boolean): void {
-    const { nx, nz, ax, cx, az, cz, lo, di, up, open } = this;
+  /** Factorises I − β·Ax and I − β·Az (sealed and held variants) and sets the explicit part. */
+  private prepare(beta: number, explicit: number, held: boolean): void {
+    const { nx, nz, ax, cx, az, cz, lo, di, up, open, xSweep, zSweep } = this;
+    const xl = xSweep.free.l, xwa = zSweep.wa, xwb = zSweep.wb;
     for (let i = 0; i < nx; i++) {
-      lo[i] = -beta * ax[i];
-      up[i] = -beta * cx[i];
-      di[i] = 1 - lo[i] - up[i];
-      this.xl[i] = lo[i];
+      const a = -beta * ax[i];
+      const c = -beta * cx[i];
+      lo[i] = a;
+      up[i] = c;
+      di[i] = 1 - a - c;
+      xl[i] = a;
+      xwa[i] = explicit * ax[i];
+      xwb[i] = explicit * cx[i];
     }
-    factorTridiagonal(lo, di, up, this.xcp, this.xinv, nx);
+    factorTridiagonal(lo, di, up, xSweep.free.cp, xSweep.free.inv, nx);
     if (held) {
+      const hl = xSweep.held.l;
       for (let i = 0; i < nx; i++) {
         if (open[i] === 1) { lo[i] = 0; di[i] = 1; up[i] = 0; }
-        this.xlHeld[i] = lo[i];
+        hl[i] = lo[i];
       }
-      factorTridiagonal(lo, di, up, this.xcpHeld, this.xinvHeld, nx);
+      factorTridiagonal(lo, di, up, xSweep.held.cp, xSweep.held.inv, nx);
     }
+    const zl = zSweep.free.l, zhl = zSweep.held.l, zwa = xSweep.wa, zwb = xSweep.wb;
     for (let j = 0; j < nz; j++) {
-      lo[j] = -beta * az[j];
-      up[j] = -beta * cz[j];
-      di[j] = 1 - lo[j] - up[j];
-      this.zl[j] = lo[j];
+      const a = -beta * az[j];
+      const c = -beta * cz[j];
+      lo[j] = a;
+      up[j] = c;
+      di[j] = 1 - a - c;
+      zl[j] = a;
+      zhl[j] = a;
+      zwa[j] = explicit * az[j];
+      zwb[j] = explicit * cz[j];
     }
-    factorTridiagonal(lo, di, up, this.zcp, this.zinv, nz);
+    factorTridiagonal(lo, di, up, zSweep.free.cp, zSweep.free.inv, nz);
     if (held) {
       // Row 0 becomes the identity C₀ = Cs; row 1 keeps its coupling to the known C₀.
       lo[0] = 0; di[0] = 1; up[0] = 0;
-      factorTridiagonal(lo, di, up, this.zcpHeld, this.zinvHeld, nz);
+      factorTridiagonal(lo, di, up, zSweep.held.cp, zSweep.held.inv, nz);
     }
-  }
-
-  /** C* = (I − β·Ax)⁻¹ (I + β·Az) Cⁿ, row by row, into `star`. */
-  private sweepX(c: Float64Array, beta: number, held: boolean, surfaceValue: number): void {
-    const { nx, nz, az, cz, star } = this;
-    for (let j = 0; j < nz; j++) {
-      const mid = j * nx;
-      const above = j > 0 ? mid - nx : mid;
-      const below = j < nz - 1 ? mid + nx : mid;
-      const wa = beta * az[j];
-      const wb = beta * cz[j];
-      const wm = 1 - wa - wb;
-      const surfaceHeld = held && j === 0;
-      const xl = surfaceHeld ? this.xlHeld : this.xl;
-      const xinv = surfaceHeld ? this.xinvHeld : this.xinv;
-      const xcp = surfaceHeld ? this.xcpHeld : this.xcp;
-      let y = 0;
-      if (surfaceHeld) {
-        const open = this.open;
-        for (let i = 0; i < nx; i++) {
-          const r = open[i] === 1 ? surfaceValue : wm * c[mid + i] + wa * c[above + i] + wb * c[below + i];
-          y = (r - xl[i] * y) * xinv[i];
-          star[mid + i] = y;
-        }
-      } else {
-        for (let i = 0; i < nx; i++) {
-          const r = wm * c[mid + i] + wa * c[above + i] + wb * c[below + i];
-          y = (r - xl[i] * y) * xinv[i];
-          star[mid + i] = y;
-        }
-      }
-      for (let i = nx - 2; i >= 0; i--) {
-        y = star[mid + i] - xcp[i] * y;
-        star[mid + i] = y;
-      }
-    }
-  }
-
-  /** Cⁿ⁺¹ = (I − β·Az)⁻¹ (I + β·Ax) C*, all columns at once. */
-  private sweepZPeaceman(c: Float64Array, beta: number, held: boolean, surfaceValue: number): void {
-    const { nx, nz, ax, cx, star, work, zl, segments } = this;
-    const last = nx - 1;
-    for (let j = 0; j < nz; j++) {
-      const mid = j * nx;
-      const above = mid - nx;
-      const l = zl[j];
-      // right-hand side (I + β·Ax) C* of this row, into work
-      work[mid] = star[mid] + beta * cx[0] * (star[mid + 1] - star[mid]);
-      for (let i = 1; i < last; i++) {
-        const s = star[mid + i];
-        work[mid + i] = s + beta * (ax[i] * (star[mid + i - 1] - s) + cx[i] * (star[mid + i + 1] - s));
-      }
-      work[mid + last] = star[mid + last] + beta * ax[last] * (star[mid + last - 1] - star[mid + last]);
-      this.forwardZRow(j, mid, above, l, held, surfaceValue, segments);
-    }
-    this.backZ(c, held);
-  }
-
-  /** Cⁿ⁺¹ = (I − β·Az)⁻¹ (C* − β·Az Cⁿ), all columns at once. */
-  private sweepZDouglas(c: Float64Array, beta: number, held: boolean, surfaceValue: number): void {
-    const { nx, nz, az, cz, star, work, zl, segments } = this;
-    for (let j = 0; j < nz; j++) {
-      const mid = j * nx;
-      const above = j > 0 ? mid - nx : mid;
-      const below = j < nz - 1 ? mid + nx : mid;
-      const wa = beta * az[j];
-      const wb = beta * cz[j];
-      for (let i = 0; i < nx; i++) {
-        const cm = c[mid + i];
-        work[mid + i] = star[mid + i] - wa * (c[above + i] - cm) - wb * (c[below + i] - cm);
-      }
-      this.forwardZRow(j, mid, mid - nx, zl[j], held, surfaceValue, segments);
-    }
-    this.backZ(c, held);
-  }
-
-  /** Forward elimination of row j of the z systems, in place in `work`. */
-  private forwardZRow(j: number, mid: number, above: number, l: number, held: boolean,
-                      surfaceValue: number, segments: SurfaceSegment[]): void {
-    const work = this.work;
-    for (let s = 0; s < segments.length; s++) {
-      const seg = segments[s];
-      const heldColumn = held && seg.open;
-      const inv = heldColumn ? this.zinvHeld[j] : this.zinv[j];
-      const i1 = seg.i1;
-      if (j === 0) {
-        if (heldColumn) for (let i = seg.i0; i < i1; i++) work[i] = surfaceValue;
-        else for (let i = seg.i0; i < i1; i++) work[i] *= inv;
-      } else {
-        for (let i = seg.i0; i < i1; i++) work[mid + i] = (work[mid + i] - l * work[above + i]) * inv;
-      }
-    }
-  }
-
-  /** Back substitution of the z systems from `work` into `c`. */
-  private backZ(c: Float64Array, held: boolean): void {
-    const { nx, nz, work, segments, zcp, zcpHeld } = this;
-    const lastRow = (nz - 1) * nx;
-    for (let i = 0; i < nx; i++) c[lastRow + i] = work[lastRow + i];
-    for (let j = nz - 2; j >= 0; j--) {
-      const mid = j * nx;
-      const below = mid + nx;
-      for (let s = 0; s < segments.length; s++) {
-        const seg = segments[s];
-        const cp = held && seg.open ? zcpHeld[j] : zcp[j];
-        for (let i = seg.i0; i < seg.i1; i++) c[mid + i] = work[mid + i] - cp * c[below + i];
-      }
-    }
+    xSweep.kind = held ? this.surfaceRowKind : this.noneHeldX;
+    zSweep.kind = held ? this.openColumnKind : this.sealedZKind;
   }
 
   /**
@@ -293,20 +228,104 @@ export class AdiStepper {
    * −ν·Σ_held V·(Ax C* + Az C̄), the negative of what the conservative operator removed
    * from the held nodes, which stay at Cs.
    */
-  private inflow(c: Float64Array, nu: number, scheme: Scheme): number {
-    const { nx, ax, cx, cz, open, star, savedRows, volumeX, volumeZ } = this;
-    const pr = scheme === 'peaceman-rachford';
+  private inflow(c: Float64Array, nu: number, pr: boolean): number {
+    const { nx, nz, ax, cx, cz, open, star, savedRows, volumeX, volumeZ } = this;
     let total = 0;
     for (let i = 0; i < nx; i++) {
       if (open[i] !== 1) continue;
+      const s = star[i * nz];
       let divX = 0;
-      if (i > 0) divX += ax[i] * (star[i - 1] - star[i]);
-      if (i < nx - 1) divX += cx[i] * (star[i + 1] - star[i]);
+      if (i > 0) divX += ax[i] * (star[(i - 1) * nz] - s);
+      if (i < nx - 1) divX += cx[i] * (star[(i + 1) * nz] - s);
       const c0 = pr ? 0.5 * (c[i] + savedRows[i]) : c[i];
       const c1 = pr ? 0.5 * (c[nx + i] + savedRows[nx + i]) : c[nx + i];
-      const divZ = cz[0] * (c1 - c0);
-      total -= nu * volumeX[i] * volumeZ[0] * (divX + divZ);
+      total -= nu * volumeX[i] * volumeZ[0] * (divX + cz[0] * (c1 - c0));
     }
     return total;
+  }
+}
+
+/**
+ * One half step over every line: for line q (contiguous in `src` at q·n),
+ *   (I − β·A_along) y = (1 − wa − wb)·s_q + wa·s_{q−1} + wb·s_{q+1},
+ * solved with the line's factor and written transposed into `dst` at k·m + q.
+ * Positions of a held line marked in `heldAlong` take `heldValue` (identity rows).
+ */
+export function sweepLines(src: Float64Array, dst: Float64Array, s: SweepSetup, heldValue: number): void {
+  const { m, kind } = s;
+  const heldFirstOnly = s.heldAlong === s.heldFirstOnly;
+  let q = 0;
+  for (; q + 4 <= m; q += 4) {
+    const k0 = kind[q];
+    const uniform = k0 === kind[q + 1] && k0 === kind[q + 2] && k0 === kind[q + 3];
+    if (uniform && k0 === 0) sweepBlock(src, dst, s, q, s.free, false, 0);
+    else if (uniform && heldFirstOnly) sweepBlock(src, dst, s, q, s.held, true, heldValue);
+    else for (let r = q; r < q + 4; r++) sweepLine(src, dst, s, r, heldValue);
+  }
+  for (; q < m; q++) sweepLine(src, dst, s, q, heldValue);
+}
+
+/**
+ * Four neighbouring lines of one kind, their recurrences interleaved. Held lines here are
+ * held at position 0 only, which is peeled off so that the loops carry no branch.
+ */
+function sweepBlock(src: Float64Array, dst: Float64Array, s: SweepSetup, q: number,
+                    f: LineFactor, held: boolean, heldValue: number): void {
+  const { n, m, wa, wb } = s;
+  const { l, cp, inv } = f;
+  const b0 = q * n, b1 = b0 + n, b2 = b1 + n, b3 = b2 + n;
+  // At the first and last line the outer coupling is zero; any valid index will do.
+  const before = q > 0 ? b0 - n : b0;
+  const after = q + 4 < m ? b3 + n : b3;
+  const a0 = wa[q], a1 = wa[q + 1], a2 = wa[q + 2], a3 = wa[q + 3];
+  const c0 = wb[q], c1 = wb[q + 1], c2 = wb[q + 2], c3 = wb[q + 3];
+  const m0 = 1 - a0 - c0, m1 = 1 - a1 - c1, m2 = 1 - a2 - c2, m3 = 1 - a3 - c3;
+  // Position 0 has no predecessor; a held line holds it at the held value.
+  let y0 = (m0 * src[b0] + a0 * src[before] + c0 * src[b1]) * inv[0];
+  let y1 = (m1 * src[b1] + a1 * src[b0] + c1 * src[b2]) * inv[0];
+  let y2 = (m2 * src[b2] + a2 * src[b1] + c2 * src[b3]) * inv[0];
+  let y3 = (m3 * src[b3] + a3 * src[b2] + c3 * src[after]) * inv[0];
+  if (held) y0 = y1 = y2 = y3 = heldValue;
+  dst[q] = y0; dst[q + 1] = y1; dst[q + 2] = y2; dst[q + 3] = y3;
+  for (let k = 1; k < n; k++) {
+    const lk = l[k];
+    const ik = inv[k];
+    const s0 = src[b0 + k], s1 = src[b1 + k], s2 = src[b2 + k], s3 = src[b3 + k];
+    y0 = (m0 * s0 + a0 * src[before + k] + c0 * s1 - lk * y0) * ik;
+    y1 = (m1 * s1 + a1 * s0 + c1 * s2 - lk * y1) * ik;
+    y2 = (m2 * s2 + a2 * s1 + c2 * s3 - lk * y2) * ik;
+    y3 = (m3 * s3 + a3 * s2 + c3 * src[after + k] - lk * y3) * ik;
+    const o = k * m + q;
+    dst[o] = y0; dst[o + 1] = y1; dst[o + 2] = y2; dst[o + 3] = y3;
+  }
+  for (let k = n - 2; k >= 0; k--) {
+    const p = cp[k];
+    const o = k * m + q;
+    y0 = dst[o] - p * y0; dst[o] = y0;
+    y1 = dst[o + 1] - p * y1; dst[o + 1] = y1;
+    y2 = dst[o + 2] - p * y2; dst[o + 2] = y2;
+    y3 = dst[o + 3] - p * y3; dst[o + 3] = y3;
+  }
+}
+
+/** One line on its own: the remainder of the blocks, blocks of mixed kind, the held surface row. */
+function sweepLine(src: Float64Array, dst: Float64Array, s: SweepSetup, q: number, heldValue: number): void {
+  const { n, m, wa, wb, heldAlong } = s;
+  const held = s.kind[q] === 1;
+  const { l, cp, inv } = held ? s.held : s.free;
+  const base = q * n;
+  const before = q > 0 ? base - n : base;
+  const after = q < m - 1 ? base + n : base;
+  const a = wa[q], c = wb[q], mid = 1 - a - c;
+  let y = 0;
+  for (let k = 0; k < n; k++) {
+    const r = held && heldAlong[k] === 1 ? heldValue : mid * src[base + k] + a * src[before + k] + c * src[after + k];
+    y = (r - l[k] * y) * inv[k];
+    dst[k * m + q] = y;
+  }
+  for (let k = n - 2; k >= 0; k--) {
+    const o = k * m + q;
+    y = dst[o] - cp[k] * y;
+    dst[o] = y;
   }
 }

@@ -106,7 +106,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
     let seconds = 0;
     for (let k = 0; k < schedule.length; k++) {
       const dt = schedule[k];
-      const scheme = k < numerics.startupSteps ? 'douglas-rachford' : 'peaceman-rachford';
+      const scheme = k < numerics.startupSteps ? 'split-implicit' : 'peaceman-rachford';
       for (const name of present) {
         const held = name === heldSpecies;
         const c = concentration[name];
@@ -145,7 +145,7 @@ export function openWidth(plan: Plan): number {
 function guardFinite(concentration: Record<string, Float64Array>, present: Set<string>,
                      stepper: AdiStepper, step: number, seconds: number): void {
   for (const name of present) {
-    if (!Number.isFinite(stepper.content(concentration[name]))) {
+    if (!stepper.bottomRowFinite(concentration[name])) {
       throw new SolverError(`the ${name} field stopped being finite in steps[${step}] at ${seconds.toPrecision(4)} s`);
     }
   }

@@ -1,0 +1,60 @@
+import type { Mesh } from './mesh.ts';
+
+/**
+ * The diffused regions of a cross-section: connected sets of mesh nodes whose doping is of the
+ * type opposite to the substrate. Two nodes are connected when they are neighbours along x or
+ * z (not diagonally), the same rule the contour follows between two inverted corners.
+ */
+export interface Regions {
+  /** 0 outside every region, 1…count inside; row-major [z][x] like the field */
+  labels: Int32Array;
+  count: number;
+}
+
+/** 1 where the node's doping is of the type opposite to the substrate. */
+export function invertedNodes(donors: Float64Array, acceptors: Float64Array, substrateType: string): Uint8Array {
+  const out = new Uint8Array(donors.length);
+  if (substrateType === 'donor') for (let k = 0; k < out.length; k++) out[k] = acceptors[k] > donors[k] ? 1 : 0;
+  else for (let k = 0; k < out.length; k++) out[k] = donors[k] > acceptors[k] ? 1 : 0;
+  return out;
+}
+
+export function labelRegions(inverted: Uint8Array, nx: number, nz: number): Regions {
+  const labels = new Int32Array(nx * nz);
+  const stack = new Int32Array(nx * nz);
+  let count = 0;
+  for (let seed = 0; seed < labels.length; seed++) {
+    if (inverted[seed] !== 1 || labels[seed] !== 0) continue;
+    count++;
+    let top = 0;
+    stack[top++] = seed;
+    labels[seed] = count;
+    while (top > 0) {
+      const k = stack[--top];
+      const i = k % nx;
+      const visit = (n: number) => {
+        if (inverted[n] === 1 && labels[n] === 0) {
+          labels[n] = count;
+          stack[top++] = n;
+        }
+      };
+      if (i > 0) visit(k - 1);
+      if (i + 1 < nx) visit(k + 1);
+      if (k >= nx) visit(k - nx);
+      if (k + nx < labels.length) visit(k + nx);
+    }
+  }
+  return { labels, count };
+}
+
+/** Index of the mesh column whose centre is nearest to x. */
+export function nearestColumn(mesh: Mesh, x: number): number {
+  let best = 0;
+  for (let i = 1; i < mesh.nx; i++) if (Math.abs(mesh.x[i] - x) < Math.abs(mesh.x[best] - x)) best = i;
+  return best;
+}
+
+/** Label of the region holding the surface node nearest to x; 0 when that node is not inverted. */
+export function surfaceRegionAt(regions: Regions, mesh: Mesh, x: number): number {
+  return regions.labels[nearestColumn(mesh, x)];
+}

@@ -1,0 +1,68 @@
+import type { Mesh } from './mesh.ts';
+import { conductivitySPerCm, type MobilityFit } from './mobility.ts';
+import type { Regions } from './region.ts';
+import { UM_TO_CM } from './units.ts';
+
+/**
+ * Sheet and line resistance of a diffused layer, isolated from the substrate by its junction.
+ *
+ * Sheet conductance of a column (J.C. Irvin, Bell Syst. Tech. J. 41 (1962) 387):
+ *   1/Rs = ∫₀^xj q·μ(N_D + N_A)·|N_D − N_A| dz        (Ω/sq)
+ * Conductance per unit length of a long line whose cross-section is the region A:
+ *   G' = ∬_A q·μ·|N_net| dx dz,   R' = 1/G'           (Ω/µm)
+ * and its effective electrical width W_eff = G'·Rs: the width a layer with the sheet
+ * resistance of the window centre would need to carry the same current.
+ */
+
+/**
+ * Sheet conductance (S per square) of a column profile from the surface to `toDepthUm`
+ * (the junction), by the trapezoidal rule on the nodes; the integrand is zero at the
+ * junction itself, where N_D = N_A.
+ */
+export function sheetConductanceS(donors: ArrayLike<number>, acceptors: ArrayLike<number>, z: ArrayLike<number>,
+                                  toDepthUm: number, fit: MobilityFit): number {
+  let sum = 0;
+  let prevZ = z[0];
+  let prevS = conductivitySPerCm(donors[0] - acceptors[0], donors[0] + acceptors[0], fit);
+  for (let j = 1; j < z.length && prevZ < toDepthUm; j++) {
+    if (z[j] >= toDepthUm) {
+      sum += 0.5 * prevS * (toDepthUm - prevZ);
+      break;
+    }
+    const s = conductivitySPerCm(donors[j] - acceptors[j], donors[j] + acceptors[j], fit);
+    sum += 0.5 * (prevS + s) * (z[j] - prevZ);
+    prevZ = z[j];
+    prevS = s;
+  }
+  return sum * UM_TO_CM;
+}
+
+/**
+ * Σ σ·ΔA over the nodes of one region, with each node's control volume Δx·Δz:
+ * S/cm · µm² (divide into 1e4 for Ω per µm of line length).
+ */
+export function regionConductance(mesh: Mesh, donors: Float64Array, acceptors: Float64Array,
+                                  regions: Regions, label: number, fit: MobilityFit): number {
+  const { nx, nz, dx, dzVolume } = mesh;
+  let total = 0;
+  for (let j = 0; j < nz; j++) {
+    let row = 0;
+    const base = j * nx;
+    for (let i = 0; i < nx; i++) {
+      const k = base + i;
+      if (regions.labels[k] === label) row += conductivitySPerCm(donors[k] - acceptors[k], donors[k] + acceptors[k], fit) * dx[i];
+    }
+    total += row * dzVolume[j];
+  }
+  return total;
+}
+
+/** S/cm·µm² → Ω per µm of line: R' = 1/G' with G' = (S/cm·µm²)·1e-8 cm² per cm, per 1e-4 cm. */
+export function lineResistanceOhmPerUm(conductanceSCmUm2: number): number {
+  return 1 / (conductanceSCmUm2 * UM_TO_CM * UM_TO_CM / UM_TO_CM);
+}
+
+/** W_eff = G'·Rs, µm. */
+export function effectiveWidthUm(conductanceSCmUm2: number, sheetConductanceSq: number): number {
+  return (conductanceSCmUm2 * UM_TO_CM) / sheetConductanceSq;
+}

@@ -1,0 +1,72 @@
+/**
+ * Solver speed and accuracy figures (`pnpm bench`). Prints; asserts nothing.
+ * 1. ns per mesh point per full ADI step (both sweeps), at three mesh sizes.
+ * 2. The reference case at three mesh refinements: wall time, xj and lateral encroachment
+ *    against the mesh- and step-converged values.
+ * 3. The whole CLI process on the reference case.
+ */
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { AdiStepper } from '../../packages/solver2d/src/adi.ts';
+import { buildMask } from '../../packages/solver2d/src/mask.ts';
+import { buildMesh, uniformAxis } from '../../packages/solver2d/src/mesh.ts';
+import { analyze, parseRecipe, planRecipe, simulate } from '../../packages/solver2d/src/index.ts';
+import { referenceRecipe } from './reference-case.ts';
+
+function best<T>(repeats: number, f: () => T): { ms: number; value: T } {
+  let ms = Infinity;
+  let value!: T;
+  for (let r = 0; r < repeats; r++) {
+    const t0 = performance.now();
+    value = f();
+    ms = Math.min(ms, performance.now() - t0);
+  }
+  return { ms, value };
+}
+
+console.log('ADI step cost (min of 5 runs of 100 full steps, one core)');
+for (const [nx, nz] of [[200, 100], [400, 200], [800, 400]]) {
+  const mesh = buildMesh(uniformAxis(nx * 0.01, nx), uniformAxis((nz - 1) * 0.01, nz - 1));
+  const mask = buildMask(mesh, [[nx * 0.004, nx * 0.006]]);
+  const stepper = new AdiStepper(mesh, mask);
+  const c = new Float64Array(nx * nz);
+  stepper.holdSurface(c, 1e20);
+  for (let k = 0; k < 30; k++) stepper.step(c, 1e-4, 'peaceman-rachford', true, 1e20);
+  const held = best(5, () => { for (let k = 0; k < 100; k++) stepper.step(c, 1e-4 * (1 + k / 100), 'peaceman-rachford', true, 1e20); });
+  const sealed = best(5, () => { for (let k = 0; k < 100; k++) stepper.step(c, 1e-4 * (1 + k / 100), 'peaceman-rachford', false, 0); });
+  const per = (ms: number) => ((ms * 1e6) / (100 * nx * nz)).toFixed(2);
+  console.log(`  ${String(nx).padStart(4)} × ${String(nz).padEnd(4)} predeposition ${per(held.ms)} ns/point/step   drive-in ${per(sealed.ms)} ns/point/step`);
+}
+
+function solve(mesh: Record<string, number>, numerics: Record<string, number> = {}) {
+  const plan = planRecipe(parseRecipe(referenceRecipe(mesh, numerics)));
+  const sim = simulate(plan);
+  const { report } = analyze(sim);
+  const w = report.windows[0];
+  return { xj: w.junctionDepthUm!, lateral: w.lateralLeftUm!, nx: plan.mesh.nx, nz: plan.mesh.nz, steps: sim.stepRecords[0].timeSteps };
+}
+
+console.log('\nReference case: one window, constant source, Cs/NB = 1e4');
+const converged = solve({ refine: 4 }, { stepGrowth: 1.02 });
+const check = solve({ refine: 3 }, { stepGrowth: 1.03 });
+console.log(`  converged (refine 4, growth 1.02): xj ${converged.xj.toFixed(5)} µm, lateral ${converged.lateral.toFixed(5)} µm` +
+  ` (refine 3, growth 1.03 differs by ${(((check.xj - converged.xj) / converged.xj) * 100).toFixed(3)} % and ${(((check.lateral - converged.lateral) / converged.lateral) * 100).toFixed(3)} %)`);
+for (const refine of [0.5, 1, 2]) {
+  const run = best(5, () => solve({ refine }));
+  const r = run.value;
+  const exj = ((r.xj - converged.xj) / converged.xj) * 100;
+  const elat = ((r.lateral - converged.lateral) / converged.lateral) * 100;
+  console.log(`  refine ${String(refine).padEnd(3)} mesh ${r.nx} × ${r.nz}, ${r.steps} steps: ${run.ms.toFixed(1).padStart(6)} ms` +
+    `   xj ${r.xj.toFixed(4)} µm (${exj >= 0 ? '+' : ''}${exj.toFixed(2)} %)   lateral ${r.lateral.toFixed(4)} µm (${elat >= 0 ? '+' : ''}${elat.toFixed(2)} %)` +
+    (refine === 1 ? '   ← default mesh' : ''));
+}
+
+const dir = mkdtempSync(join(tmpdir(), 'edgewise-bench-'));
+const recipePath = join(dir, 'reference.json');
+writeFileSync(recipePath, JSON.stringify(referenceRecipe()));
+const cli = join(process.cwd(), 'packages', 'cli', 'bin', 'edgewise.mjs');
+execFileSync(process.execPath, [cli, 'run', recipePath, '--out', join(dir, 'out'), '--quiet']);
+const whole = best(5, () => execFileSync(process.execPath, [cli, 'run', recipePath, '--out', join(dir, 'out'), '--quiet']));
+console.log(`\nWhole CLI process (node start, read, solve, write files): ${whole.ms.toFixed(0)} ms (min of 5)`);
