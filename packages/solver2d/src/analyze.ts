@@ -1,13 +1,15 @@
+import { engineeringResults, type ReportResults, type WindowResults } from './engineering.ts';
 import { buildField, type Field } from './field.ts';
 import {
   columnAt, crossings, junctionIndicator, surfaceCrossing, wallPaddedGrid, zeroContours,
   type NodeGrid, type Polyline,
 } from './junction.ts';
 import type { LedgerEntry, Simulation } from './simulate.ts';
+import { doseFromConcentrationUm } from './units.ts';
 
 export const REPORT_SCHEMA_ID = 'edgewise.report/1';
 
-export interface WindowReport {
+export interface WindowReport extends WindowResults {
   x0Um: number;
   x1Um: number;
   centreUm: number;
@@ -24,9 +26,11 @@ export interface WindowReport {
   surfaceConcentrationCm3: number;
   /** each diffused species at the surface at the window centre, cm^-3 */
   surfaceBySpeciesCm3: Record<string, number>;
+  /** ∫C dz of each diffused species down the window centre, cm^-2 */
+  centreDoseCm2: Record<string, number>;
 }
 
-export interface Report {
+export interface Report extends ReportResults {
   schema: typeof REPORT_SCHEMA_ID;
   title: string | null;
   substrate: { dopant: string; type: string; concentrationCm3: number };
@@ -83,7 +87,14 @@ export function analyze(sim: Simulation): Analysis {
     const lateralRight = right === null ? null : right - x1;
     const lateralMean = lateralLeft !== null && lateralRight !== null ? 0.5 * (lateralLeft + lateralRight) : lateralLeft ?? lateralRight;
     const surfaceBySpecies: Record<string, number> = {};
-    for (const s of plan.species) surfaceBySpecies[s.name] = rounded(columnAt(speciesGrids[s.name], centre, column)[0]);
+    const centreDose: Record<string, number> = {};
+    for (const s of plan.species) {
+      const profile = columnAt(speciesGrids[s.name], centre, column);
+      surfaceBySpecies[s.name] = rounded(profile[0]);
+      let dose = 0;
+      for (let j = 0; j < mesh.nz; j++) dose += profile[j] * mesh.dzVolume[j];
+      centreDose[s.name] = rounded(doseFromConcentrationUm(dose));
+    }
     return {
       x0Um: x0, x1Um: x1, centreUm: centre,
       junctionDepthUm: depth === null ? null : rounded(depth),
@@ -93,6 +104,7 @@ export function analyze(sim: Simulation): Analysis {
       lateralToVerticalRatio: depth && lateralMean !== null ? rounded(lateralMean / depth, 4) : null,
       surfaceConcentrationCm3: rounded(Math.abs(columnAt(netGrid, centre, column)[0])),
       surfaceBySpeciesCm3: surfaceBySpecies,
+      centreDoseCm2: centreDose,
     };
   });
 
@@ -104,13 +116,16 @@ export function analyze(sim: Simulation): Analysis {
   let finestZ = Infinity;
   for (let j = 1; j < mesh.nz; j++) finestZ = Math.min(finestZ, mesh.z[j] - mesh.z[j - 1]);
 
+  const results = engineeringResults(sim, field, grid);
   const report: Report = {
     schema: REPORT_SCHEMA_ID,
     title: recipe.title ?? null,
     substrate: { ...plan.substrate },
     crossSection: { widthUm: mesh.widthUm, depthUm: rounded(mesh.depthUm) },
     mesh: { columns: mesh.nx, rows: mesh.nz, finestXUm: rounded(finestX, 4), finestZUm: rounded(finestZ, 4) },
-    windows,
+    windows: windows.map((w, k) => ({ ...w, ...results.windows[k] })),
+    spacings: results.spacings,
+    mobility: results.mobility,
     junctions: zeroContours(grid).map((line) => ({ polylinesUm: [line.map(([x, z]) => [rounded(x), rounded(z)] as [number, number])] })),
     doseCm2,
     ledger: sim.ledger,

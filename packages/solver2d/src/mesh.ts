@@ -33,6 +33,9 @@ export interface SpacingRule {
   grade: number;
   /** largest spacing anywhere, µm */
   maxUm: number;
+  /** optional finer spacing right at a feature, growing by `grade` until it meets `fineUm`:
+   *  resolves a short early step (a brief predeposition) inside a long recipe */
+  nearUm?: number;
 }
 
 /** Samples per interval for the spacing integral; the placement error is far below a cell. */
@@ -40,7 +43,8 @@ const SAMPLES = 2048;
 
 function spacingAt(distance: number, rule: SpacingRule): number {
   const beyond = Math.max(0, distance - rule.fineReachUm);
-  return Math.min(rule.maxUm, rule.fineUm + rule.grade * beyond);
+  const s = Math.min(rule.maxUm, rule.fineUm + rule.grade * beyond);
+  return rule.nearUm === undefined ? s : Math.min(s, rule.nearUm + rule.grade * distance);
 }
 
 /**

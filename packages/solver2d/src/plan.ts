@@ -62,6 +62,8 @@ export const DEFAULT_LIMITS: PlanLimits = { maxMeshPoints: 4_000_000 };
 const CELLS_PER_REACH_Z = 80;
 const CELLS_PER_REACH_X = 40;
 const FINE_REACH = 1.3;
+/** Cells per diffusion length of the shortest predeposition, at the surface and the edges. */
+const CELLS_PER_SOURCE_LENGTH = 16;
 const GRADE = 0.15;
 /**
  * Ratio of successive time steps. Peaceman–Rachford's error in xj goes as (Δt/t)², measured
@@ -194,17 +196,26 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
     warnings.push(`crossSection.depthUm ${recipe.crossSection.depthUm} µm is shallower than the ${autoDepth.toPrecision(3)} µm the profile needs; the bottom wall may change the answer`);
   }
 
+  // The shortest diffusion length of a source step: a brief predeposition before a long
+  // drive-in sets the dose in a layer much thinner than the final profile.
+  let shortest = Infinity;
+  for (const st of steps) {
+    if (st.kind === 'predeposition' && st.dopant) shortest = Math.min(shortest, Math.sqrt(st.diffusivity[st.dopant] * st.seconds));
+  }
   const m = recipe.mesh ?? {};
   const refine = m.refine ?? 1;
   const fineX = m.edgeSpacingUm ?? reachUm / CELLS_PER_REACH_X / refine;
   const fineZ = m.surfaceSpacingUm ?? reachUm / CELLS_PER_REACH_Z / refine;
+  const near = shortest / CELLS_PER_SOURCE_LENGTH / refine;
   let xRule: SpacingRule = {
     fineUm: fineX, fineReachUm: FINE_REACH * reachUm, grade: GRADE,
     maxUm: m.maxSpacingUm ?? Math.max(fineX, reachUm / 2 / refine),
+    ...(near < fineX && m.edgeSpacingUm === undefined ? { nearUm: near } : {}),
   };
   let zRule: SpacingRule = {
     fineUm: fineZ, fineReachUm: FINE_REACH * reachUm, grade: GRADE,
     maxUm: m.maxSpacingUm ?? Math.max(fineZ, reachUm / 4 / refine),
+    ...(near < fineZ && m.surfaceSpacingUm === undefined ? { nearUm: near } : {}),
   };
   const edges = maskEdges(windows, widthUm);
   const fixed = windows.flat();

@@ -57,9 +57,9 @@ export function regionConductance(mesh: Mesh, donors: Float64Array, acceptors: F
   return total;
 }
 
-/** S/cm·µm² → Ω per µm of line: R' = 1/G' with G' = (S/cm·µm²)·1e-8 cm² per cm, per 1e-4 cm. */
+/** Ω per µm of line: a length ℓ (cm) of a line with ∬σ dA (S·cm) has R = ℓ / ∬σ dA. */
 export function lineResistanceOhmPerUm(conductanceSCmUm2: number): number {
-  return 1 / (conductanceSCmUm2 * UM_TO_CM * UM_TO_CM / UM_TO_CM);
+  return UM_TO_CM / (conductanceSCmUm2 * UM_TO_CM * UM_TO_CM);
 }
 
 /** W_eff = G'·Rs, µm. */

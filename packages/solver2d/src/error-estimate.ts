@@ -1,0 +1,156 @@
+import { analyze, type Report } from './analyze.ts';
+import { DEFAULT_STEP_GROWTH, planRecipe, type PlanLimits } from './plan.ts';
+import type { Recipe } from './recipe.ts';
+import { simulate, type SimulateOptions } from './simulate.ts';
+
+/**
+ * Numerical error of every reported length, from solves on coarser meshes and Richardson
+ * extrapolation.
+ *
+ * A coarser solve halves the mesh density (mesh.refine × ½) and doubles the time steps
+ * (stepGrowth − 1 × 2: the steps grow geometrically, so Δt/t is what sets the time error).
+ * The scheme is second order in both, so a quantity f with mesh size h behaves as
+ * f(h) ≈ f* + C·h^p with p = 2, and from the default and the coarser solve
+ *   f* ≈ f₁ + (f₁ − f₂)/(2^p − 1),      error of f₁ ≈ |f₁ − f₂|/(2^p − 1).
+ * With a third, coarser still solve the order is measured, p = log₂(|f₃ − f₂| / |f₂ − f₁|),
+ * and the smaller of the measured and the formal order is used (the larger error bar).
+ * Safety factors follow common practice for grid-convergence estimates: 1.25 when the
+ * order was measured and is credible (0.5 ≤ p, the three values monotone), 3 otherwise.
+ */
+export const FORMAL_ORDER = 2;
+export const SAFETY_MEASURED = 1.25;
+export const SAFETY_ASSUMED = 3;
+const MIN_CREDIBLE_ORDER = 0.5;
+
+/** Window fields that get an error bar (lengths, and the resistances as well). */
+export const WINDOW_ERROR_KEYS = [
+  'junctionDepthUm', 'lateralLeftUm', 'lateralRightUm', 'effectiveWidthUm', 'drawnPlusLateralUm',
+  'curvatureRadiusLeftUm', 'curvatureRadiusRightUm', 'sheetResistanceOhmSq', 'lineResistanceOhmPerUm',
+] as const;
+export const SPACING_ERROR_KEYS = ['surfaceGapUm', 'minimumGapUm'] as const;
+
+export type WindowErrorKey = (typeof WINDOW_ERROR_KEYS)[number];
+export type SpacingErrorKey = (typeof SPACING_ERROR_KEYS)[number];
+
+export interface ErrorEstimateSummary {
+  method: string;
+  /** the meshes solved, default first: refine factor, stepGrowth and size */
+  meshes: { refine: number; stepGrowth: number; columns: number; rows: number }[];
+  /** order measured on the junction depths and lateral encroachments (median), null with two meshes */
+  observedOrder: number | null;
+}
+
+/** Error bars in the unit of the field they belong to (named the same). */
+export type ErrorBars<K extends string> = Partial<Record<K, number | null>>;
+
+/** The recipe with the mesh `2^level` times coarser and time steps `2^level` times longer. */
+export function coarsenedRecipe(recipe: Recipe, level: number): Recipe {
+  const f = 2 ** -level;
+  const mesh = { ...(recipe.mesh ?? {}) };
+  mesh.refine = (mesh.refine ?? 1) * f;
+  if (mesh.columns !== undefined) mesh.columns = Math.max(8, Math.round(mesh.columns * f));
+  if (mesh.rows !== undefined) mesh.rows = Math.max(8, Math.round(mesh.rows * f));
+  if (mesh.surfaceSpacingUm !== undefined) mesh.surfaceSpacingUm /= f;
+  if (mesh.edgeSpacingUm !== undefined) mesh.edgeSpacingUm /= f;
+  if (mesh.maxSpacingUm !== undefined) mesh.maxSpacingUm /= f;
+  const growth = recipe.numerics?.stepGrowth ?? DEFAULT_STEP_GROWTH;
+  return { ...recipe, mesh, numerics: { ...(recipe.numerics ?? {}), stepGrowth: 1 + (growth - 1) / f } };
+}
+
+/** Order measured from three values on meshes h, 2h, 4h; null if they are not monotone or barely move. */
+export function observedOrder(f1: number, f2: number, f3: number): number | null {
+  const d12 = f2 - f1;
+  const d23 = f3 - f2;
+  if (d12 === 0 || d23 === 0 || Math.sign(d12) !== Math.sign(d23)) return null;
+  return Math.log2(Math.abs(d23) / Math.abs(d12));
+}
+
+/** Error bar of f1 from f2 (and f3 if solved). */
+export function richardsonError(f1: number, f2: number, f3?: number): number {
+  const measured = f3 === undefined ? null : observedOrder(f1, f2, f3);
+  const credible = measured !== null && measured >= MIN_CREDIBLE_ORDER;
+  const p = credible ? Math.min(measured, FORMAL_ORDER) : FORMAL_ORDER;
+  const safety = credible ? SAFETY_MEASURED : SAFETY_ASSUMED;
+  return (safety * Math.abs(f1 - f2)) / (2 ** p - 1);
+}
+
+function bar(values: (number | null | undefined)[]): number | null {
+  const [f1, f2, f3] = values;
+  if (typeof f1 !== 'number' || typeof f2 !== 'number') return null;
+  return Number(richardsonError(f1, f2, typeof f3 === 'number' ? f3 : undefined).toPrecision(3));
+}
+
+function median(v: number[]): number | null {
+  if (v.length === 0) return null;
+  const s = [...v].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
+}
+
+/**
+ * The default report with error bars: `reports` are the same recipe solved on the default
+ * mesh and then 2 (and 4) times coarser, all with the same windows.
+ */
+export function withErrorBars(reports: Report[], recipe: Recipe): Report {
+  const [fine] = reports;
+  const windows = fine.windows.map((w, k) => {
+    const errors: ErrorBars<WindowErrorKey> = {};
+    for (const key of WINDOW_ERROR_KEYS) {
+      if (w[key] === undefined) continue;
+      errors[key] = bar(reports.map((r) => r.windows[k]?.[key]));
+    }
+    return { ...w, errors };
+  });
+  const spacings = fine.spacings?.map((s, k) => {
+    const errors: ErrorBars<SpacingErrorKey> = {};
+    for (const key of SPACING_ERROR_KEYS) {
+      // Once merged a gap is 0 by definition and has no error of its own.
+      errors[key] = reports.every((r) => r.spacings?.[k] && !r.spacings[k].merged) ? bar(reports.map((r) => r.spacings![k][key])) : null;
+    }
+    return { ...s, errors };
+  });
+  const orders: number[] = [];
+  if (reports.length >= 3) {
+    for (let k = 0; k < fine.windows.length; k++) {
+      for (const key of ['junctionDepthUm', 'lateralLeftUm', 'lateralRightUm'] as const) {
+        const [f1, f2, f3] = reports.map((r) => r.windows[k]?.[key]);
+        if (typeof f1 === 'number' && typeof f2 === 'number' && typeof f3 === 'number') {
+          const p = observedOrder(f1, f2, f3);
+          if (p !== null) orders.push(p);
+        }
+      }
+    }
+  }
+  const p = median(orders);
+  const errorEstimate: ErrorEstimateSummary = {
+    method: reports.length >= 3
+      ? 'Richardson extrapolation from meshes h, 2h, 4h (time steps likewise); order measured per quantity, at most 2; safety factor 1.25, or 3 where the order could not be measured'
+      : 'Richardson extrapolation from meshes h and 2h (time steps likewise), formal order 2, safety factor 3',
+    meshes: reports.map((r, level) => ({
+      refine: coarsenedRecipe(recipe, level).mesh!.refine!,
+      stepGrowth: Number(coarsenedRecipe(recipe, level).numerics!.stepGrowth!.toPrecision(6)),
+      columns: r.mesh.columns,
+      rows: r.mesh.rows,
+    })),
+    observedOrder: p === null ? null : Number(p.toPrecision(3)),
+  };
+  return { ...fine, windows, ...(spacings ? { spacings } : {}), errorEstimate };
+}
+
+export interface ErrorSolveOptions extends SimulateOptions {
+  /** coarser meshes to solve: 1 (2h) or 2 (2h and 4h) */
+  levels?: 1 | 2;
+  limits?: PlanLimits;
+  /** called before each coarser solve with its level */
+  onLevel?: (level: number) => void;
+}
+
+/** Solves the recipe on the coarser meshes and returns their reports, coarsest last. */
+export function coarseReports(recipe: Recipe, options: ErrorSolveOptions = {}): Report[] {
+  const out: Report[] = [];
+  for (let level = 1; level <= (options.levels ?? 2); level++) {
+    options.onLevel?.(level);
+    out.push(analyze(simulate(planRecipe(coarsenedRecipe(recipe, level), options.limits), options)).report);
+  }
+  return out;
+}
