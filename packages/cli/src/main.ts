@@ -1,6 +1,9 @@
 import { RecipeError, SolverError } from '@edgewise/solver2d';
+import { mergeCommand, MERGE_USAGE } from './commands/merge.ts';
 import { runCommand, RUN_USAGE } from './commands/run.ts';
 import { schemaCommand, SCHEMA_USAGE } from './commands/schema.ts';
+import { viewCommand, VIEW_USAGE } from './commands/view.ts';
+import { sweepCommand, SWEEP_USAGE } from './commands/sweep.ts';
 import { InputError, UsageError } from './errors.ts';
 
 type Command = (args: string[]) => number | Promise<number>;

@@ -1,0 +1,118 @@
+import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
+import { join, relative, resolve, sep } from 'node:path';
+import { parseArgs } from 'node:util';
+import { InputError, UsageError } from '../errors.ts';
+import { inside, writeAtomic } from '../files.ts';
+import { encodeCsv, parseCsv } from '../sweep/csv.ts';
+import { SWEEP_SCHEMA_ID, type SweepDocument, type SweepRunEntry } from '../sweep/record.ts';
+import { SHARD_FILE } from '../sweep/shard.ts';
+import { EXIT_RUNS_FAILED } from './sweep.ts';
+
+export const MERGE_USAGE = 'edgewise merge DIR… [--out DIR]';
+
+interface ShardFiles {
+  folder: string;
+  name: string;
+  doc: SweepDocument;
+  header: string[];
+  rows: string[][];
+}
+
+function readShard(folder: string, name: string): ShardFiles {
+  const jsonPath = join(folder, name);
+  const csvPath = jsonPath.replace(/\.json$/, '.csv');
+  let doc: SweepDocument;
+  try {
+    doc = JSON.parse(readFileSync(jsonPath, 'utf8')) as SweepDocument;
+  } catch (e) {
+    throw new InputError(`${jsonPath}: is not readable JSON: ${(e as Error).message.split('\n')[0]}`);
+  }
+  if (doc.schema !== SWEEP_SCHEMA_ID || !doc.shard || !Array.isArray(doc.runs) || !Array.isArray(doc.parameters)) {
+    throw new InputError(`${jsonPath}: is not a sweep shard index (schema "${SWEEP_SCHEMA_ID}" with a shard)`);
+  }
+  if (!existsSync(csvPath)) throw new InputError(`${csvPath}: is missing (every shard writes a .csv beside its .json)`);
+  let table: string[][];
+  try {
+    table = parseCsv(readFileSync(csvPath, 'utf8'));
+  } catch (e) {
+    throw new InputError(`${csvPath}: is not readable CSV: ${(e as Error).message}`);
+  }
+  const [header, ...rows] = table;
+  if (!header) throw new InputError(`${csvPath}: is empty`);
+  const ids = rows.map((r) => Number(r[0]));
+  const listed = doc.runs.map((r) => r.id);
+  if (rows.some((r) => r.length !== header.length) || ids.join() !== listed.join()) {
+    throw new InputError(`${csvPath}: does not match ${name} (the rows must be the runs listed there, in order)`);
+  }
+  return { folder, name, doc, header, rows };
+}
+
+/**
+ * Joins the slices of a sharded sweep (`sweep-shard-K-of-N.json` and `.csv` in the given folders)
+ * into one sweep.csv and sweep.json, whose run folders are referred to where they lie.
+ */
+export function mergeCommand(args: string[]): number {
+  const { values, positionals } = parseArgs({
+    args, allowPositionals: true, strict: true,
+    options: { out: { type: 'string' } },
+  });
+  if (positionals.length === 0) throw new UsageError(`merge takes the folders holding the shards (usage: ${MERGE_USAGE})`);
+  const shards: ShardFiles[] = [];
+  const seenFolders = new Set<string>();
+  for (const folder of positionals) {
+    if (!existsSync(folder) || !statSync(folder).isDirectory()) throw new UsageError(`merge: ${folder}: is not a folder (give the folders the shards wrote to)`);
+    const key = resolve(folder);
+    if (seenFolders.has(key)) continue;
+    seenFolders.add(key);
+    const names = readdirSync(folder).filter((n) => SHARD_FILE.test(n)).sort();
+    if (names.length === 0) throw new UsageError(`merge: ${folder}: holds no shard files (sweep-shard-K-of-N.json, written by edgewise sweep --shard K/N)`);
+    for (const name of names) shards.push(readShard(folder, name));
+  }
+
+  const first = shards[0];
+  const where = (s: ShardFiles) => join(s.folder, s.name);
+  for (const s of shards) {
+    if (s.doc.sweepSha256 !== first.doc.sweepSha256) {
+      throw new UsageError(`merge: ${where(s)} is from a different sweep than ${where(first)} (other recipe, values or parameters)`);
+    }
+    if (s.header.join() !== first.header.join()) throw new UsageError(`merge: ${where(s)} has other columns than ${where(first)}`);
+  }
+  const count = first.doc.shard!.count;
+  const byIndex = new Map<number, ShardFiles>();
+  for (const s of shards) {
+    const index = s.doc.shard!.index;
+    const twin = byIndex.get(index);
+    if (twin) throw new UsageError(`merge: shard ${index}/${count} appears twice (${where(twin)} and ${where(s)}); give each shard once`);
+    byIndex.set(index, s);
+  }
+  const missing = Array.from({ length: count }, (_, k) => k + 1).filter((k) => !byIndex.has(k));
+  if (missing.length > 0) {
+    throw new UsageError(`merge: missing shard${missing.length === 1 ? '' : 's'} ${missing.map((k) => `${k}/${count}`).join(', ')} (found ${[...byIndex.keys()].sort((a, b) => a - b).map((k) => `${k}/${count}`).join(', ')})`);
+  }
+
+  const out = values.out ?? first.folder;
+  if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${out}: is a file, not a folder`);
+  const runs: { entry: SweepRunEntry; row: string[] }[] = [];
+  for (const s of shards) {
+    s.doc.runs.forEach((entry, k) => {
+      const dir = relative(resolve(out), resolve(s.folder, entry.dir)).split(sep).join('/');
+      runs.push({ entry: { ...entry, dir }, row: s.rows[k] });
+    });
+  }
+  runs.sort((a, b) => a.entry.id - b.entry.id);
+  const total = first.doc.total;
+  if (runs.length !== total || runs.some((r, k) => r.entry.id !== k + 1)) {
+    throw new UsageError(`merge: the shards hold ${runs.length} runs, not the ${total} runs 1 to ${total} of the sweep`);
+  }
+
+  const doc: SweepDocument = { ...first.doc, shard: null, runs: runs.map((r) => r.entry) };
+  writeAtomic(inside(out, 'sweep.csv'), encodeCsv([first.header, ...runs.map((r) => r.row)]));
+  writeAtomic(inside(out, 'sweep.json'), `${JSON.stringify(doc, null, 2)}\n`);
+  const notOk = runs.filter((r) => r.entry.status !== 'ok');
+  process.stdout.write(`merged ${count} shard${count === 1 ? '' : 's'}: ${total} runs, ${total - notOk.length} ok, ${notOk.length} not ok; wrote ${join(out, 'sweep.csv')}, ${join(out, 'sweep.json')}\n`);
+  if (notOk.length > 0) {
+    process.stderr.write(`merge: ${notOk.length} runs did not finish ok (${notOk.slice(0, 10).map((r) => `${r.entry.id} ${r.entry.status}`).join(', ')}${notOk.length > 10 ? ', …' : ''})\n`);
+    return EXIT_RUNS_FAILED;
+  }
+  return 0;
+}

@@ -1,0 +1,231 @@
+import { existsSync, mkdirSync, statSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
+import { basename, extname, join, resolve } from 'node:path';
+import { parseArgs } from 'node:util';
+import { UsageError } from '../errors.ts';
+import { fmtLength, fmtRatio, fmtSci, table } from '../format.ts';
+import { progressReporter } from '../progress.ts';
+import { readRecipeFile } from '../read-recipe.ts';
+import type { RunRow } from '../sweep/csv.ts';
+import { buildMatrix, runRecipe, type SweepMatrix, type SweepRun } from '../sweep/matrix.ts';
+import { workerBundle, WorkerPool } from '../sweep/pool.ts';
+import { SWEEP_SCHEMA_ID, writeSweepFiles, type SweepDocument } from '../sweep/record.ts';
+import { finishedRun, removeStaleTemps } from '../sweep/resume.ts';
+import { inShard, parseShard, sweepStem, type Shard } from '../sweep/shard.ts';
+
+export const SWEEP_USAGE =
+  'edgewise sweep RECIPE [--widths RANGE] [--set PATH=VALUES]… [--out DIR] [--jobs N] [--resume] [--shard K/N] [--quiet]';
+
+/** Exit codes beyond main.ts's 0 (ok), 1 (internal failure) and 2 (bad input). */
+export const EXIT_RUNS_FAILED = 3;
+export const EXIT_INTERRUPTED = 130;
+export const EXIT_TERMINATED = 143;
+
+export const MAX_JOBS = 256;
+/** sweep.csv and sweep.json are rewritten at most this often while runs finish. */
+const RECORD_EVERY_MS = 1000;
+
+export function defaultSweepFolder(recipePath: string): string {
+  return join('out', `${basename(recipePath, extname(recipePath))}-sweep`);
+}
+
+function parseJobs(text: string | undefined): number {
+  if (text === undefined) return availableParallelism();
+  const n = /^\s*\d+\s*$/.test(text) ? Number(text) : NaN;
+  if (!(n >= 1 && n <= MAX_JOBS)) throw new UsageError(`--jobs ${JSON.stringify(text)}: expected a whole number from 1 to ${MAX_JOBS} (worker threads; default: the number of cores, ${availableParallelism()})`);
+  return n;
+}
+
+function errorText(e: unknown): string {
+  const err = e as { name?: string; message?: string };
+  const message = (err.message ?? String(e)).split('\n')[0];
+  return err.name && err.name !== 'Error' && !message.startsWith(err.name) ? `${err.name}: ${message}` : message;
+}
+
+export async function sweepCommand(args: string[]): Promise<number> {
+  const { values, positionals } = parseArgs({
+    args, allowPositionals: true, strict: true,
+    options: {
+      widths: { type: 'string' },
+      set: { type: 'string', multiple: true, default: [] },
+      out: { type: 'string' },
+      jobs: { type: 'string' },
+      resume: { type: 'boolean', default: false },
+      shard: { type: 'string' },
+      quiet: { type: 'boolean', default: false },
+    },
+  });
+  if (positionals.length !== 1) throw new UsageError(`sweep takes one recipe file (usage: ${SWEEP_USAGE})`);
+  const recipePath = positionals[0];
+  const jobs = parseJobs(values.jobs);
+  const shard = values.shard === undefined ? null : parseShard(values.shard);
+  const out = values.out ?? defaultSweepFolder(recipePath);
+  if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${out}: is a file, not a folder`);
+  // Every run is built and validated here; nothing is written before this line succeeds.
+  const matrix = buildMatrix(readRecipeFile(recipePath), { widths: values.widths, set: values.set });
+  return runSweep(matrix, { out, jobs, shard, resume: values.resume, quiet: values.quiet });
+}
+
+interface SweepOptions {
+  out: string;
+  jobs: number;
+  shard: Shard | null;
+  resume: boolean;
+  quiet: boolean;
+}
+
+async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<number> {
+  const { out, shard } = options;
+  const started = performance.now();
+  const mine = matrix.runs.filter((r) => inShard(r.id, shard));
+  const stem = sweepStem(shard);
+  mkdirSync(out, { recursive: true });
+  removeStaleTemps(out, [`${stem}.csv`, `${stem}.json`]);
+
+  const rows = new Map<number, RunRow>();
+  const toDo: SweepRun[] = [];
+  let reused = 0;
+  for (const run of mine) {
+    const folder = join(out, run.dir);
+    removeStaleTemps(folder, null);
+    const windows = options.resume ? finishedRun(folder, run.recipeSha256) : null;
+    if (windows) {
+      rows.set(run.id, { id: run.id, values: run.values, windows, status: 'ok', error: null });
+      reused++;
+    } else {
+      rows.set(run.id, { id: run.id, values: run.values, windows: null, status: 'pending', error: null });
+      toDo.push(run);
+    }
+  }
+  const record = () => {
+    const ordered = mine.map((r) => rows.get(r.id)!);
+    const doc: SweepDocument = {
+      schema: SWEEP_SCHEMA_ID, title: matrix.title,
+      parameters: matrix.parameters.map((p) => p.name), windows: matrix.windows,
+      total: matrix.runs.length, shard, sweepSha256: matrix.sweepSha256,
+      runs: mine.map((r, k) => ({
+        id: r.id, dir: r.dir, values: r.values, status: ordered[k].status, error: ordered[k].error, recipeSha256: r.recipeSha256,
+      })),
+    };
+    return writeSweepFiles(out, stem, doc, ordered);
+  };
+  record();
+
+  let failed = 0;
+  let finished = 0;
+  let stopping: 'SIGINT' | 'SIGTERM' | null = null;
+  let abandoning = false;
+  const warnings: string[] = [];
+  const progress = progressReporter(options.quiet ? null : process.stderr, 'sweep');
+  const pool = toDo.length > 0 ? new WorkerPool(Math.min(options.jobs, toDo.length), workerBundle()) : null;
+  const report = () => progress.update(
+    toDo.length === 0 ? 1 : (finished + (pool?.runningFraction() ?? 0)) / toDo.length,
+    `${reused + finished}/${mine.length} runs, ${failed} failed`,
+  );
+  const say = (line: string) => {
+    if (!options.quiet) process.stderr.write(`${process.stderr.isTTY ? '\r\x1b[K' : ''}${line}\n`);
+  };
+  const onInt = () => {
+    if (stopping === null) {
+      stopping = 'SIGINT';
+      say('sweep: stopping — no new runs start; the running ones finish (Ctrl-C again to abandon them)');
+    } else if (!abandoning) {
+      abandoning = true;
+      pool?.abandon();
+      say('sweep: abandoning the running runs');
+    }
+  };
+  const onTerm = () => {
+    stopping ??= 'SIGTERM';
+    abandoning = true;
+    pool?.abandon();
+  };
+  process.on('SIGINT', onInt);
+  process.on('SIGTERM', onTerm);
+  const ticker = setInterval(report, 250);
+  ticker.unref();
+
+  let lastRecord = performance.now();
+  let next = 0;
+  const lane = async (currentPool: WorkerPool) => {
+    while (stopping === null && next < toDo.length) {
+      const run = toDo[next++];
+      const recipe = runRecipe(matrix.base, matrix.parameters, run.values);
+      const row = rows.get(run.id)!;
+      try {
+        const outcome = await currentPool.run({ id: run.id, folder: resolve(out, run.dir), recipe, recipeText: `${JSON.stringify(recipe, null, 2)}\n` });
+        row.windows = outcome.windows;
+        row.status = 'ok';
+        for (const w of outcome.warnings) warnings.push(`run ${run.id}: ${w}`);
+      } catch (e) {
+        if (abandoning && (e as Error).name === 'StoppedError') {
+          row.status = 'abandoned';
+          row.error = `abandoned: the sweep was stopped by ${stopping}`;
+        } else {
+          row.status = 'failed';
+          row.error = errorText(e);
+          failed++;
+        }
+      }
+      finished++;
+      report();
+      if (performance.now() - lastRecord > RECORD_EVERY_MS) {
+        record();
+        lastRecord = performance.now();
+      }
+    }
+  };
+  try {
+    if (pool) await Promise.all(Array.from({ length: pool.size }, () => lane(pool)));
+  } finally {
+    clearInterval(ticker);
+    process.off('SIGINT', onInt);
+    process.off('SIGTERM', onTerm);
+    progress.done();
+    await pool?.close();
+  }
+  const written = record();
+
+  const ordered = mine.map((r) => rows.get(r.id)!);
+  const count = (s: RunRow['status']) => ordered.filter((r) => r.status === s).length;
+  const seconds = (performance.now() - started) / 1000;
+  process.stdout.write(`${summaryTable(matrix, ordered)}\n`);
+  for (const r of ordered) if (r.status === 'failed') process.stdout.write(`run ${r.id} failed: ${r.error}\n`);
+  process.stdout.write(`wrote ${out}/: ${written.join(', ')} and ${count('ok')} run folder${count('ok') === 1 ? '' : 's'}\n`);
+  if (!options.quiet) {
+    if (warnings.length > 0) {
+      process.stderr.write(`warning: ${warnings.length} warning${warnings.length === 1 ? '' : 's'} from the runs (each run's report.json lists its own); the first: ${warnings[0]}\n`);
+    }
+    const shardNote = shard ? ` (shard ${shard.index}/${shard.count} of ${matrix.runs.length})` : '';
+    process.stderr.write(`sweep: ${ordered.length} runs${shardNote}: ${count('ok')} ok${reused ? ` (${reused} already finished)` : ''}, ${failed} failed, ` +
+      `${count('abandoned')} abandoned, ${count('pending')} not run; ${seconds.toFixed(1)} s with ${pool?.size ?? 0} worker${pool?.size === 1 ? '' : 's'}\n`);
+  }
+  if (stopping) {
+    process.stderr.write(`sweep: stopped by ${stopping}; run the same command with --resume to finish it\n`);
+    return stopping === 'SIGINT' ? EXIT_INTERRUPTED : EXIT_TERMINATED;
+  }
+  if (failed > 0) {
+    process.stderr.write(`sweep: ${failed} of ${ordered.length} runs failed (see the error column of ${stem}.csv)\n`);
+    return EXIT_RUNS_FAILED;
+  }
+  return 0;
+}
+
+/** One line per run (per window when there are several), the swept values first. */
+function summaryTable(matrix: SweepMatrix, rows: readonly RunRow[]): string {
+  const names = matrix.parameters.map((p) => p.name);
+  const several = matrix.windows > 1;
+  const header = ['run', ...names, ...(several ? ['window'] : []), 'xj µm', 'lateral L µm', 'lateral R µm', 'lateral/xj', 'surface cm^-3', 'status'];
+  const body: string[][] = [];
+  for (const r of rows) {
+    for (let k = 0; k < matrix.windows; k++) {
+      const w = r.windows?.[k];
+      body.push([
+        String(r.id), ...names.map((n) => String(r.values[n])), ...(several ? [String(k + 1)] : []),
+        fmtLength(w?.junctionDepthUm ?? null), fmtLength(w?.lateralLeftUm ?? null), fmtLength(w?.lateralRightUm ?? null),
+        fmtRatio(w?.lateralToVerticalRatio ?? null), w ? fmtSci(w.surfaceConcentrationCm3) : '—', r.status,
+      ]);
+    }
+  }
+  return table(header, body);
+}

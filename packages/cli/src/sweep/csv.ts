@@ -1,0 +1,90 @@
+import type { WindowReport } from '@edgewise/solver2d';
+
+/**
+ * sweep.csv: one row per run — id, the swept values, then per window the junction depth,
+ * lateral encroachment at each edge, their ratio and the surface concentration, then the
+ * run's status and error. Quoting follows RFC 4180 (fields with a comma, quote or line
+ * break are quoted, quotes doubled).
+ */
+export const WINDOW_COLUMNS = [
+  'junctionDepthUm', 'lateralLeftUm', 'lateralRightUm', 'lateralToVerticalRatio', 'surfaceConcentrationCm3',
+] as const satisfies readonly (keyof WindowReport)[];
+
+export type RunStatus = 'ok' | 'failed' | 'abandoned' | 'pending';
+
+export interface RunRow {
+  id: number;
+  values: Record<string, number>;
+  /** the report's windows, when the run finished */
+  windows: Pick<WindowReport, (typeof WINDOW_COLUMNS)[number]>[] | null;
+  status: RunStatus;
+  error: string | null;
+}
+
+export function csvHeader(parameters: readonly string[], windows: number): string[] {
+  const metrics = windows === 1
+    ? [...WINDOW_COLUMNS]
+    : Array.from({ length: windows }, (_, k) => WINDOW_COLUMNS.map((c) => `w${k + 1}.${c}`)).flat();
+  return ['id', ...parameters, ...metrics, 'status', 'error'];
+}
+
+/** Shortest text that reads back as the same number; exponent form for large and small magnitudes. */
+export function numberCell(v: number | null | undefined): string {
+  if (v === null || v === undefined) return '';
+  const a = Math.abs(v);
+  return a !== 0 && (a >= 1e6 || a < 1e-4) ? v.toExponential().replace('e+', 'e') : String(v);
+}
+
+export function csvRow(row: RunRow, parameters: readonly string[], windows: number): string[] {
+  const metrics: string[] = [];
+  for (let k = 0; k < windows; k++) {
+    const w = row.windows?.[k];
+    for (const c of WINDOW_COLUMNS) metrics.push(numberCell(w?.[c]));
+  }
+  return [String(row.id), ...parameters.map((p) => numberCell(row.values[p])), ...metrics, row.status, row.error ?? ''];
+}
+
+function quote(field: string): string {
+  return /[",\r\n]/.test(field) ? `"${field.replace(/"/g, '""')}"` : field;
+}
+
+export function encodeCsv(rows: readonly (readonly string[])[]): string {
+  return rows.map((r) => r.map(quote).join(',')).join('\n') + '\n';
+}
+
+/** Parses RFC 4180 text into rows of fields; throws on an unterminated quote. */
+export function parseCsv(text: string): string[][] {
+  const rows: string[][] = [];
+  let row: string[] = [];
+  let field = '';
+  let quoted = false;
+  let k = 0;
+  while (k < text.length) {
+    const ch = text[k];
+    if (quoted) {
+      if (ch === '"' && text[k + 1] === '"') { field += '"'; k += 2; continue; }
+      if (ch === '"') { quoted = false; k++; continue; }
+      field += ch;
+      k++;
+      continue;
+    }
+    if (ch === '"' && field === '') { quoted = true; k++; continue; }
+    if (ch === ',') { row.push(field); field = ''; k++; continue; }
+    if (ch === '\n' || ch === '\r') {
+      row.push(field);
+      rows.push(row);
+      row = [];
+      field = '';
+      k += ch === '\r' && text[k + 1] === '\n' ? 2 : 1;
+      continue;
+    }
+    field += ch;
+    k++;
+  }
+  if (quoted) throw new Error('unterminated quoted field');
+  if (field !== '' || row.length > 0) {
+    row.push(field);
+    rows.push(row);
+  }
+  return rows;
+}

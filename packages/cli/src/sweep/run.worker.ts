@@ -1,0 +1,34 @@
+import { rmSync } from 'node:fs';
+import { parentPort, workerData } from 'node:worker_threads';
+import * as Comlink from 'comlink';
+import nodeEndpoint from 'comlink/dist/umd/node-adapter.js';
+import { analyze, parseRecipe, planRecipe, simulate } from '@edgewise/solver2d';
+import { inside, writeAtomic } from '../files.ts';
+import { writeRunFolder } from '../output.ts';
+import { PROGRESS_OFFSET, RECIPE_FILE, STOP_INDEX, type RunOutcome, type RunTask, type RunWorkerApi } from './task.ts';
+
+/** One sweep worker: runs a recipe with solver2d as it is and writes the run folder. */
+if (!parentPort) throw new Error('run.worker is a worker thread entry, not a program');
+const control = (workerData as { control: SharedArrayBuffer }).control;
+const stop = new Int32Array(control, 0, 1);
+const progress = new Float64Array(control, PROGRESS_OFFSET, 1);
+
+const api: RunWorkerApi = {
+  run(task: RunTask): RunOutcome {
+    // An old marker would vouch for files this run is about to replace.
+    rmSync(inside(task.folder, RECIPE_FILE), { force: true });
+    progress[0] = 0;
+    const plan = planRecipe(parseRecipe(task.recipe));
+    const sim = simulate(plan, {
+      onProgress: (p) => (progress[0] = p.done / p.total),
+      shouldStop: () => Atomics.load(stop, STOP_INDEX) !== 0,
+    });
+    const analysis = analyze(sim);
+    writeRunFolder(task.folder, analysis);
+    writeAtomic(inside(task.folder, RECIPE_FILE), task.recipeText);
+    progress[0] = 1;
+    return { windows: analysis.report.windows, warnings: analysis.report.warnings };
+  },
+};
+
+Comlink.expose(api, nodeEndpoint(parentPort));

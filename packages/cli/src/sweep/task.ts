@@ -1,0 +1,34 @@
+import type { WindowReport } from '@edgewise/solver2d';
+
+/** What the main thread sends a worker for one run, and what comes back. */
+export interface RunTask {
+  id: number;
+  /** the run folder, absolute */
+  folder: string;
+  recipe: Record<string, unknown>;
+  /** the recipe as written to the folder's recipe.json */
+  recipeText: string;
+}
+
+export interface RunOutcome {
+  windows: WindowReport[];
+  warnings: string[];
+}
+
+export interface RunWorkerApi {
+  run(task: RunTask): RunOutcome;
+}
+
+/**
+ * Written into a run folder after writeRunFolder has finished, so its presence with a matching
+ * hash marks a finished run; it is also a recipe `edgewise run` takes as it is.
+ */
+export const RECIPE_FILE = 'recipe.json';
+
+/**
+ * Shared memory between the main thread and one worker: an Int32 stop flag at byte 0 (set to
+ * abandon the running run) and the running run's fraction done as a Float64 at byte 8.
+ */
+export const CONTROL_BYTES = 16;
+export const STOP_INDEX = 0;
+export const PROGRESS_OFFSET = 8;
