@@ -42,7 +42,9 @@ if (stale) {
     platform: 'node',
     format: 'esm',
     target: 'node20',
-    sourcemap: 'inline',
+    sourcemap: 'linked',
+    minify: true,
+    keepNames: true,
     write: false,
     logLevel: 'error',
     // CommonJS dependencies bundled into ESM need a require of their own.

@@ -63,6 +63,32 @@ export class StoppedError extends Error {
  */
 const FIRST_STEP_MESH_NUMBER = 0.25;
 
+/**
+ * Time steps for every process step. A step that starts a source (a predeposition, a
+ * film) begins from a discontinuity and starts at the mesh's own time scale. A drive-in
+ * continues a profile that already has an age t₀ = (∫D dt so far)/D: the geometric
+ * sequence then starts at (growth − 1)·t₀, keeping Δt/t as it would be had the profile
+ * grown at this temperature from the start (the youngest species present decides).
+ */
+function timeSchedules(plan: Plan, hFine: number): Float64Array[] {
+  const { steps, species, numerics } = plan;
+  const budget: Record<string, number> = {};
+  const introduced = new Set<string>();
+  return steps.map((st) => {
+    if (st.dopant) introduced.add(st.dopant);
+    const active = species.filter((s) => introduced.has(s.name));
+    const dMax = Math.max(0, ...active.map((s) => st.diffusivity[s.name]));
+    if (!(st.seconds > 0) || dMax === 0) return new Float64Array(0);
+    let first = (FIRST_STEP_MESH_NUMBER * hFine * hFine) / dMax;
+    if (st.kind === 'drive-in' || st.kind === 'anneal') {
+      const age = Math.min(...active.map((s) => (budget[s.name] ?? 0) / st.diffusivity[s.name]));
+      if (Number.isFinite(age)) first = Math.max(first, (numerics.stepGrowth - 1) * age);
+    }
+    for (const s of active) budget[s.name] = (budget[s.name] ?? 0) + st.diffusivity[s.name] * st.seconds;
+    return geometricSteps(st.seconds, first, numerics.stepGrowth);
+  });
+}
+
 /** Runs the recipe's steps in order; each species diffuses with its own D during every timed step. */
 export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation {
   const { mesh, mask, species, steps, numerics } = plan;
@@ -79,11 +105,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   for (let i = 0; i < mesh.nx; i++) hFine = Math.min(hFine, mesh.dx[i]);
   for (let j = 1; j < mesh.nz; j++) hFine = Math.min(hFine, mesh.z[j] - mesh.z[j - 1]);
 
-  const schedules = steps.map((st) => {
-    const dMax = Math.max(0, ...species.map((s) => st.diffusivity[s.name]));
-    if (!(st.seconds > 0) || dMax === 0) return new Float64Array(0);
-    return geometricSteps(st.seconds, (FIRST_STEP_MESH_NUMBER * hFine * hFine) / dMax, numerics.stepGrowth);
-  });
+  const schedules = timeSchedules(plan, hFine);
   const total = schedules.reduce((n, s) => n + s.length, 0);
   let done = 0;
   const stepRecords: StepRecord[] = [];

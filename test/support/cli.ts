@@ -1,0 +1,17 @@
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+
+export const REPO = resolve(import.meta.dirname, '..', '..');
+export const BIN = join(REPO, 'packages', 'cli', 'bin', 'edgewise.mjs');
+
+export function tempDir(prefix = 'edgewise-test-'): string {
+  return mkdtempSync(join(tmpdir(), prefix));
+}
+
+/** Runs the real `edgewise` binary; returns exit code, stdout and stderr. */
+export function edgewise(args: string[], options: { cwd?: string; input?: string } = {}) {
+  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: options.cwd ?? REPO, input: options.input, encoding: 'utf8', timeout: 120_000 });
+  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
+}
