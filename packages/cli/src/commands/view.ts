@@ -1,0 +1,40 @@
+import { existsSync, statSync } from 'node:fs';
+import { parseArgs } from 'node:util';
+import { InputError, UsageError } from '../errors.ts';
+import { ensureViewerBuilt } from '../view-build.ts';
+import { startViewServer } from '../view-server.ts';
+
+export const VIEW_USAGE = 'edgewise view DIR [--recipe FILE] [--port N]';
+
+/**
+ * Serves the viewer and one run or sweep folder on 127.0.0.1, prints the address, and runs
+ * until interrupted. --recipe gives the live mode its starting recipe.
+ */
+export async function viewCommand(args: string[]): Promise<number> {
+  const { values, positionals } = parseArgs({
+    args, allowPositionals: true, strict: true,
+    options: { recipe: { type: 'string' }, port: { type: 'string' } },
+  });
+  if (positionals.length !== 1) throw new UsageError(`view takes one run or sweep folder (usage: ${VIEW_USAGE})`);
+  const dir = positionals[0];
+  if (!existsSync(dir) || !statSync(dir).isDirectory()) throw new InputError(`view: ${dir} is not a folder (give a run or sweep folder)`);
+  if (values.recipe !== undefined && (!existsSync(values.recipe) || !statSync(values.recipe).isFile())) {
+    throw new InputError(`--recipe: ${values.recipe} is not a file`);
+  }
+  let port = 0;
+  if (values.port !== undefined) {
+    port = Number(values.port);
+    if (!Number.isInteger(port) || port < 0 || port > 65535) throw new UsageError(`--port: must be a whole number from 0 to 65535 (0 = any free port), got ${JSON.stringify(values.port)}`);
+  }
+  const viewerDir = await ensureViewerBuilt({ log: (line) => process.stderr.write(`${line}\n`) });
+  const { server, url } = await startViewServer({ dataDir: dir, viewerDir, recipePath: values.recipe ?? null, port });
+  process.stdout.write(`edgewise view: serving ${dir} at ${url} (Ctrl-C to stop)\n`);
+  return new Promise<number>((resolve) => {
+    const stop = () => {
+      server.close(() => resolve(0));
+      server.closeAllConnections();
+    };
+    process.once('SIGINT', stop);
+    process.once('SIGTERM', stop);
+  });
+}

@@ -1,0 +1,160 @@
+import type { TileView } from './tile.ts';
+
+/**
+ * Grid layout of the tiles with one length scale for all: the same pixels per µm across
+ * every tile, and the same pixels per µm down (depth may be drawn stretched by a whole
+ * factor, which the axes say), so widths and depths compare at a glance.
+ */
+
+export interface Extent {
+  widthUm: number;
+  depthUm: number;
+}
+
+/** Thickness of the mask band drawn above the surface, CSS px; the view starts a pixel above it. */
+export const MASK_BAND_PX = 7;
+const BAND = MASK_BAND_PX + 1;
+
+/** Room around each tile's plot, CSS px: axis labels left and below, the caption under them. */
+export const MARGIN = { left: 42, right: 10, top: 14, bottom: 52 };
+
+export interface GridLayout {
+  columns: number;
+  rows: number;
+  cellWidth: number;
+  cellHeight: number;
+  pxPerUmX: number;
+  pxPerUmZ: number;
+  /** depth drawn this many times larger than width */
+  stretch: number;
+  views: TileView[];
+}
+
+/** Stretches offered when the depth is much smaller than the width. */
+export const STRETCHES = [1, 2, 5, 10, 20, 50];
+
+/** Columns for n tiles in an area, so that cells come out closest to the tiles' own shape. */
+export function chooseColumns(n: number, areaWidth: number, areaHeight: number, tileAspect: number, fixed?: number): number {
+  if (fixed && fixed > 0) return Math.min(n, fixed);
+  let best = 1;
+  let bestScale = 0;
+  for (let c = 1; c <= n; c++) {
+    const r = Math.ceil(n / c);
+    const w = areaWidth / c - MARGIN.left - MARGIN.right;
+    const h = areaHeight / r - MARGIN.top - MARGIN.bottom;
+    // Size of the largest tile of this aspect that fits the cell.
+    const scale = Math.min(w, h * tileAspect);
+    if (scale > bestScale) {
+      bestScale = scale;
+      best = c;
+    }
+  }
+  return best;
+}
+
+/**
+ * Lays out tiles of the given extents in a grid filling `area`. `stretch` 0 picks the
+ * largest of STRETCHES that still fits (at least 1).
+ */
+export function layoutGrid(extents: Extent[], area: { width: number; height: number }, stretch = 0, fixedColumns?: number): GridLayout {
+  const n = extents.length;
+  const maxW = Math.max(...extents.map((e) => e.widthUm));
+  const maxD = Math.max(...extents.map((e) => e.depthUm));
+  const aspectAt = (s: number) => maxW / (maxD * s);
+  // Try stretches from the largest down: the first whose tiles fit at full width wins.
+  const candidates = stretch > 0 ? [stretch] : [...STRETCHES].reverse();
+  let chosen: GridLayout | null = null;
+  for (const s of candidates) {
+    const columns = chooseColumns(n, area.width, area.height, aspectAt(s), fixedColumns);
+    const rows = Math.max(1, Math.ceil(n / columns));
+    const cellWidth = Math.floor(area.width / columns);
+    const cellHeight = Math.floor(area.height / rows);
+    const plotW = Math.max(10, cellWidth - MARGIN.left - MARGIN.right);
+    const plotH = Math.max(10, cellHeight - MARGIN.top - MARGIN.bottom);
+    let pxX = plotW / maxW;
+    let pxZ = pxX * s;
+    if (pxZ * maxD > plotH) {
+      if (stretch === 0 && s > 1) continue; // too tall at this stretch: try a smaller one
+      pxZ = plotH / maxD;
+      pxX = pxZ / s;
+    }
+    const views = extents.map((_, k) => {
+      const col = k % columns;
+      const row = Math.floor(k / columns);
+      return {
+        left: col * cellWidth + MARGIN.left,
+        top: row * cellHeight + MARGIN.top - BAND,
+        width: Math.max(1, Math.round(extents[k].widthUm * pxX)),
+        height: Math.max(1, Math.round(extents[k].depthUm * pxZ)) + BAND,
+        x0Um: 0, z0Um: -BAND / pxZ, pxPerUmX: pxX, pxPerUmZ: pxZ,
+      };
+    });
+    chosen = { columns, rows, cellWidth, cellHeight, pxPerUmX: pxX, pxPerUmZ: pxZ, stretch: s, views };
+    break;
+  }
+  return chosen!;
+}
+
+/** The focused tile: the whole area, the world window given by pan and zoom. */
+export interface FocusState {
+  /** world point at the centre of the plot, µm */
+  centreXUm: number;
+  centreZUm: number;
+  pxPerUmX: number;
+  stretch: number;
+}
+
+export function focusPlotRect(area: { width: number; height: number }) {
+  return {
+    left: MARGIN.left + 8,
+    top: MARGIN.top + 8,
+    width: Math.max(10, area.width - MARGIN.left - MARGIN.right - 16),
+    height: Math.max(10, area.height - MARGIN.top - 34 - 16),
+  };
+}
+
+/** Pan and zoom that show the whole cross-section in the area. */
+export function fitFocus(extent: Extent, area: { width: number; height: number }, stretch: number): FocusState {
+  const rect = focusPlotRect(area);
+  // Automatic: the largest stretch at which the whole width still fits across the area.
+  const s = stretch > 0 ? stretch : Math.max(1, ...STRETCHES.filter((c) => extent.widthUm / (extent.depthUm * c) >= rect.width / rect.height));
+  const pxX = Math.min(rect.width / extent.widthUm, (rect.height - 2 * BAND) / (extent.depthUm * s));
+  // Leave the mask band above the surface in view.
+  return { centreXUm: extent.widthUm / 2, centreZUm: extent.depthUm / 2 - BAND / (pxX * s) / 2, pxPerUmX: pxX, stretch: s };
+}
+
+export function focusView(state: FocusState, area: { width: number; height: number }): TileView {
+  const rect = focusPlotRect(area);
+  const pxZ = state.pxPerUmX * state.stretch;
+  return {
+    ...rect,
+    x0Um: state.centreXUm - rect.width / 2 / state.pxPerUmX,
+    z0Um: state.centreZUm - rect.height / 2 / pxZ,
+    pxPerUmX: state.pxPerUmX,
+    pxPerUmZ: pxZ,
+  };
+}
+
+/** Zoom by `factor` about the canvas point (px, py), keeping the world point under it fixed. */
+export function zoomAbout(state: FocusState, area: { width: number; height: number }, px: number, py: number, factor: number): FocusState {
+  const view = focusView(state, area);
+  const wx = view.x0Um + (px - view.left) / view.pxPerUmX;
+  const wz = view.z0Um + (py - view.top) / view.pxPerUmZ;
+  const pxX = state.pxPerUmX * factor;
+  const pxZ = pxX * state.stretch;
+  const rect = focusPlotRect(area);
+  return {
+    ...state,
+    pxPerUmX: pxX,
+    centreXUm: wx - (px - rect.left) / pxX + rect.width / 2 / pxX,
+    centreZUm: wz - (py - rect.top) / pxZ + rect.height / 2 / pxZ,
+  };
+}
+
+export function pan(state: FocusState, dxPx: number, dyPx: number): FocusState {
+  return {
+    ...state,
+    centreXUm: state.centreXUm - dxPx / state.pxPerUmX,
+    centreZUm: state.centreZUm - dyPx / (state.pxPerUmX * state.stretch),
+  };
+}

@@ -1,0 +1,325 @@
+import type { Report } from '@edgewise/solver2d';
+import { parseNpy } from './npy.ts';
+
+/**
+ * Reading run and sweep folders (contracts in DEVELOPERS.md) from wherever they are: the
+ * `edgewise view` server, or files the user picked or dropped. Every failure becomes a
+ * Problem naming the file and saying why, which the page shows; one broken run does not
+ * stop the others from showing.
+ */
+
+export interface Problem {
+  /** path of the file inside the opened folder */
+  file: string;
+  reason: string;
+}
+
+export class FileProblem extends Error {
+  constructor(readonly file: string, readonly reason: string) {
+    super(`${file}: ${reason}`);
+    this.name = 'FileProblem';
+  }
+}
+
+/** Where files come from. `read` throws FileProblem; `list` gives every file path it knows, if it can. */
+export interface FileSource {
+  label: string;
+  read(path: string): Promise<ArrayBuffer>;
+  has?(path: string): boolean;
+  list(): Promise<string[] | null>;
+}
+
+export interface RunData {
+  id: string;
+  /** folder inside the opened folder, '' for a lone run */
+  dir: string;
+  values: Record<string, number | string>;
+  report: Report;
+  /** x cell centres and z nodes, µm */
+  x: Float64Array;
+  z: Float64Array;
+  /** [layers, nz, nx], cm^-3; layer 0 net doping */
+  field: Float64Array;
+  layers: string[];
+}
+
+export interface DataSet {
+  label: string;
+  kind: 'sweep' | 'run' | 'folders' | 'live';
+  parameters: string[];
+  runs: RunData[];
+  problems: Problem[];
+  /** a recipe found beside the results (recipe.json), for the live mode */
+  recipe: unknown;
+}
+
+export const SWEEP_SCHEMA_ID = 'edgewise.sweep/1';
+export const REPORT_SCHEMA = 'edgewise.report/1';
+
+function join(dir: string, name: string): string {
+  return dir ? `${dir.replace(/\/+$/, '')}/${name}` : name;
+}
+
+function decodeJson(file: string, buffer: ArrayBuffer): unknown {
+  const text = new TextDecoder().decode(buffer);
+  try {
+    return JSON.parse(text);
+  } catch (e) {
+    throw new FileProblem(file, `not valid JSON (${(e as Error).message})`);
+  }
+}
+
+const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
+const isNumber = (v: unknown): v is number => typeof v === 'number' && Number.isFinite(v);
+
+/** The first thing wrong with a report object, naming its key; null if it is usable. */
+export function reportProblem(r: unknown): string | null {
+  if (!isObject(r)) return 'is not a JSON object';
+  if (r.schema !== REPORT_SCHEMA) return `"schema" is ${JSON.stringify(r.schema)}, expected "${REPORT_SCHEMA}"`;
+  const cs = r.crossSection;
+  if (!isObject(cs) || !isNumber(cs.widthUm) || !isNumber(cs.depthUm) || cs.widthUm <= 0 || cs.depthUm <= 0) return '"crossSection" needs positive numbers widthUm and depthUm';
+  if (!Array.isArray(r.windows)) return '"windows" must be a list';
+  for (const [k, w] of r.windows.entries()) {
+    if (!isObject(w) || !isNumber(w.x0Um) || !isNumber(w.x1Um)) return `"windows[${k}]" needs numbers x0Um and x1Um`;
+    for (const key of ['junctionDepthUm', 'lateralLeftUm', 'lateralRightUm'] as const) {
+      if (w[key] !== null && w[key] !== undefined && !isNumber(w[key])) return `"windows[${k}].${key}" must be a number or null`;
+    }
+  }
+  if (!Array.isArray(r.junctions)) return '"junctions" must be a list';
+  for (const [k, j] of r.junctions.entries()) {
+    if (!isObject(j) || !Array.isArray(j.polylinesUm)) return `"junctions[${k}].polylinesUm" must be a list of polylines`;
+    for (const line of j.polylinesUm) {
+      if (!Array.isArray(line) || line.some((p: unknown) => !Array.isArray(p) || p.length !== 2 || !isNumber(p[0]) || !isNumber(p[1]))) {
+        return `"junctions[${k}].polylinesUm" must hold polylines of [x, z] number pairs`;
+      }
+    }
+  }
+  const f = r.field;
+  if (!isObject(f) || !Array.isArray(f.layers) || f.layers.length < 1 || f.layers.some((l) => typeof l !== 'string')) return '"field.layers" must be a list of layer names';
+  if (!Array.isArray(f.shape) || f.shape.length !== 3 || f.shape.some((n) => !Number.isInteger(n) || n < 1)) return '"field.shape" must be three positive whole numbers [layers, nz, nx]';
+  if (f.shape[0] !== f.layers.length) return `"field.shape" has ${f.shape[0]} layers but "field.layers" names ${f.layers.length}`;
+  if (!isObject(r.substrate) || !isNumber(r.substrate.concentrationCm3)) return '"substrate.concentrationCm3" must be a number';
+  return null;
+}
+
+async function readNpy(source: FileSource, file: string) {
+  const buffer = await source.read(file);
+  try {
+    return parseNpy(buffer);
+  } catch (e) {
+    throw new FileProblem(file, (e as Error).message);
+  }
+}
+
+/** One run folder; throws FileProblem for the first file that is missing or wrong. */
+export async function loadRun(source: FileSource, dir: string, id: string, values: Record<string, number | string>): Promise<RunData> {
+  const reportFile = join(dir, 'report.json');
+  const report = decodeJson(reportFile, await source.read(reportFile));
+  const problem = reportProblem(report);
+  if (problem) throw new FileProblem(reportFile, problem);
+  const r = report as Report;
+  const [layers, nz, nx] = r.field.shape;
+  const fieldFile = join(dir, 'field.npy');
+  const xFile = join(dir, 'x.npy');
+  const zFile = join(dir, 'z.npy');
+  const [field, x, z] = await Promise.all([readNpy(source, fieldFile), readNpy(source, xFile), readNpy(source, zFile)]);
+  if (field.shape.join() !== [layers, nz, nx].join()) {
+    throw new FileProblem(fieldFile, `has shape [${field.shape.join(', ')}], report.json says [${layers}, ${nz}, ${nx}]`);
+  }
+  if (x.shape.length !== 1 || x.shape[0] !== nx) throw new FileProblem(xFile, `holds ${x.shape.join(' × ')} values, the field has ${nx} columns`);
+  if (z.shape.length !== 1 || z.shape[0] !== nz) throw new FileProblem(zFile, `holds ${z.shape.join(' × ')} values, the field has ${nz} rows`);
+  for (const [file, a] of [[xFile, x.data], [zFile, z.data]] as const) {
+    for (let k = 1; k < a.length; k++) if (!(a[k] > a[k - 1])) throw new FileProblem(file, `coordinates must increase (entry ${k} is ${a[k]} after ${a[k - 1]})`);
+  }
+  for (let k = 0; k < field.data.length; k++) {
+    if (!Number.isFinite(field.data[k])) throw new FileProblem(fieldFile, `value ${k} is ${field.data[k]}, not a finite number`);
+  }
+  return { id, dir, values, report: r, x: x.data, z: z.data, field: field.data, layers: r.field.layers };
+}
+
+interface SweepEntry {
+  id: string;
+  dir: string;
+  values: Record<string, number | string>;
+  status?: string;
+  error?: string | null;
+}
+
+function sweepProblem(s: unknown): string | null {
+  if (!isObject(s)) return 'is not a JSON object';
+  if (s.schema !== undefined && s.schema !== SWEEP_SCHEMA_ID) return `"schema" is ${JSON.stringify(s.schema)}, expected "${SWEEP_SCHEMA_ID}"`;
+  if (!Array.isArray(s.parameters) || s.parameters.some((p) => typeof p !== 'string')) return '"parameters" must be a list of names';
+  if (!Array.isArray(s.runs)) return '"runs" must be a list';
+  for (const [k, r] of s.runs.entries()) {
+    if (!isObject(r) || typeof r.dir !== 'string' || (typeof r.id !== 'string' && typeof r.id !== 'number')) return `"runs[${k}]" needs an id and a dir`;
+    if (r.values !== undefined && !isObject(r.values)) return `"runs[${k}].values" must be an object`;
+  }
+  return null;
+}
+
+function compareValues(a: number | string | undefined, b: number | string | undefined): number {
+  if (typeof a === 'number' && typeof b === 'number') return a - b;
+  return String(a ?? '').localeCompare(String(b ?? ''), undefined, { numeric: true });
+}
+
+export function windowWidthUm(report: Report): number | null {
+  const w = report.windows[0];
+  return w ? w.x1Um - w.x0Um : null;
+}
+
+/** Runs in the order of their swept values (first parameter slowest), then by window width. */
+export function sortRuns(runs: RunData[], parameters: string[]): RunData[] {
+  return [...runs].sort((a, b) => {
+    for (const p of parameters) {
+      const c = compareValues(a.values[p], b.values[p]);
+      if (c !== 0) return c;
+    }
+    return compareValues(windowWidthUm(a.report) ?? 0, windowWidthUm(b.report) ?? 0) || a.dir.localeCompare(b.dir);
+  });
+}
+
+async function tryRead(source: FileSource, path: string): Promise<ArrayBuffer | null> {
+  if (source.has && !source.has(path)) return null;
+  try {
+    return await source.read(path);
+  } catch (e) {
+    if (e instanceof FileProblem && /not found/.test(e.reason)) return null;
+    throw e;
+  }
+}
+
+async function loadRecipe(source: FileSource, dirs: string[], problems: Problem[]): Promise<unknown> {
+  for (const dir of ['', ...dirs]) {
+    const file = join(dir, 'recipe.json');
+    try {
+      const buffer = await tryRead(source, file);
+      if (buffer) return decodeJson(file, buffer);
+    } catch (e) {
+      if (e instanceof FileProblem) problems.push({ file: e.file, reason: e.reason });
+      return null;
+    }
+  }
+  return null;
+}
+
+/** Opens whatever the source holds: a sweep folder, one run folder, or a folder of run folders. */
+export async function loadDataSet(source: FileSource): Promise<DataSet> {
+  const problems: Problem[] = [];
+  const note = (e: unknown) => {
+    if (e instanceof FileProblem) problems.push({ file: e.file, reason: e.reason });
+    else problems.push({ file: source.label, reason: (e as Error).message ?? String(e) });
+  };
+  const gather = async (entries: SweepEntry[], kind: DataSet['kind'], parameters: string[]): Promise<DataSet> => {
+    const results = await Promise.all(entries.map(async (entry) => {
+      if (entry.error) {
+        problems.push({ file: join(entry.dir, 'report.json'), reason: `run ${entry.id} failed in the sweep: ${entry.error}` });
+        return null;
+      }
+      try {
+        return await loadRun(source, entry.dir, entry.id, entry.values);
+      } catch (e) {
+        if (e instanceof FileProblem && /not found/.test(e.reason) && entry.status && !/^(done|ok|complete)/i.test(entry.status)) {
+          problems.push({ file: e.file, reason: `${e.reason} (the sweep lists run ${entry.id} as ${entry.status})` });
+        } else note(e);
+        return null;
+      }
+    }));
+    const runs = sortRuns(results.filter((r): r is RunData => r !== null), parameters);
+    const recipe = await loadRecipe(source, entries.slice(0, 1).map((e) => e.dir), problems);
+    return { label: source.label, kind, parameters, runs, problems, recipe };
+  };
+
+  let sweepBuffer: ArrayBuffer | null = null;
+  try {
+    sweepBuffer = await tryRead(source, 'sweep.json');
+  } catch (e) {
+    note(e);
+  }
+  if (sweepBuffer) {
+    try {
+      const sweep = decodeJson('sweep.json', sweepBuffer);
+      const problem = sweepProblem(sweep);
+      if (problem) throw new FileProblem('sweep.json', problem);
+      const s = sweep as { parameters: string[]; runs: SweepEntry[] };
+      const entries = s.runs.map((r) => ({ ...r, id: String(r.id), values: (r.values ?? {}) as Record<string, number | string> }));
+      return await gather(entries, 'sweep', s.parameters);
+    } catch (e) {
+      note(e);
+      return { label: source.label, kind: 'sweep', parameters: [], runs: [], problems, recipe: null };
+    }
+  }
+  if (await tryRead(source, 'report.json').catch(() => null) !== null || (source.has?.('report.json') ?? false)) {
+    return gather([{ id: 'run', dir: '', values: {} }], 'run', []);
+  }
+  const listed = await source.list().catch(() => null);
+  const dirs = (listed ?? [])
+    .filter((p) => /(^|\/)report\.json$/.test(p))
+    .map((p) => p.replace(/\/?report\.json$/, ''))
+    .filter((d) => d.length > 0);
+  if (dirs.length > 0) return gather(dirs.map((d) => ({ id: d, dir: d, values: {} })), 'folders', []);
+  problems.push({ file: 'sweep.json', reason: `not found, and there is no report.json in ${source.label} or in a folder below it: open a run or sweep folder` });
+  return { label: source.label, kind: 'run', parameters: [], runs: [], problems, recipe: null };
+}
+
+/** Files served over HTTP under `base` (the `edgewise view` server). */
+export class HttpSource implements FileSource {
+  constructor(readonly label: string, private readonly base: string, private readonly listUrl: string | null) {}
+
+  async read(path: string): Promise<ArrayBuffer> {
+    let response: Response;
+    try {
+      response = await fetch(this.base + path.split('/').map(encodeURIComponent).join('/'), { cache: 'no-store' });
+    } catch (e) {
+      throw new FileProblem(path, `could not be fetched (${(e as Error).message})`);
+    }
+    if (response.status === 404) throw new FileProblem(path, 'not found');
+    if (!response.ok) throw new FileProblem(path, `the server answered ${response.status} ${response.statusText}`);
+    return response.arrayBuffer();
+  }
+
+  async list(): Promise<string[] | null> {
+    if (!this.listUrl) return null;
+    const response = await fetch(this.listUrl, { cache: 'no-store' });
+    return response.ok ? ((await response.json()) as string[]) : null;
+  }
+}
+
+/** Files the user picked or dropped, by their path inside the chosen folder. */
+export class LocalFilesSource implements FileSource {
+  readonly files = new Map<string, File>();
+
+  constructor(readonly label: string, entries: Iterable<[string, File]>) {
+    for (const [path, file] of entries) this.files.set(path, file);
+  }
+
+  has(path: string): boolean {
+    return this.files.has(path);
+  }
+
+  async read(path: string): Promise<ArrayBuffer> {
+    const file = this.files.get(path);
+    if (!file) throw new FileProblem(path, 'not found');
+    try {
+      return await file.arrayBuffer();
+    } catch (e) {
+      throw new FileProblem(path, `could not be read (${(e as Error).message})`);
+    }
+  }
+
+  async list(): Promise<string[]> {
+    return [...this.files.keys()];
+  }
+}
+
+/**
+ * Paths relative to the chosen folder: a folder pick or drop gives "name/…" for every file,
+ * and that shared first part is the folder itself.
+ */
+export function relativePaths(paths: string[]): { root: string; paths: string[] } {
+  const firsts = new Set(paths.map((p) => (p.includes('/') ? p.slice(0, p.indexOf('/')) : '')));
+  if (firsts.size === 1 && !firsts.has('')) {
+    const root = [...firsts][0];
+    return { root, paths: paths.map((p) => p.slice(root.length + 1)) };
+  }
+  return { root: '', paths };
+}

@@ -1,0 +1,131 @@
+import * as THREE from 'three';
+import { colourMapRgba } from './colormap.ts';
+import { niceTicks, formatTick } from './ticks.ts';
+import type { Tile, TileView } from './tile.ts';
+
+const BACKGROUND = 0xf6f6f4;
+
+/**
+ * One WebGL renderer for every tile: each tile is drawn into its own rectangle of the one
+ * canvas with viewport and scissor. A 2D canvas over it carries the axes (ticks and µm
+ * labels), which need text.
+ */
+export class Stage {
+  readonly canvas: HTMLCanvasElement;
+  readonly overlay: HTMLCanvasElement;
+  readonly renderer: THREE.WebGLRenderer;
+  readonly colourMapBytes = colourMapRgba(256);
+  readonly colourMap: THREE.DataTexture;
+  private readonly ctx: CanvasRenderingContext2D;
+  width = 1;
+  height = 1;
+  frames = 0;
+
+  constructor(readonly container: HTMLElement) {
+    this.canvas = document.createElement('canvas');
+    this.canvas.className = 'stage-gl';
+    this.overlay = document.createElement('canvas');
+    this.overlay.className = 'stage-overlay';
+    container.append(this.canvas, this.overlay);
+    this.renderer = new THREE.WebGLRenderer({ canvas: this.canvas, antialias: false, preserveDrawingBuffer: true });
+    this.renderer.autoClear = false;
+    this.renderer.setPixelRatio(Math.min(2, window.devicePixelRatio || 1));
+    this.colourMap = new THREE.DataTexture(this.colourMapBytes, 256, 1, THREE.RGBAFormat);
+    this.colourMap.magFilter = THREE.LinearFilter;
+    this.colourMap.minFilter = THREE.LinearFilter;
+    this.colourMap.wrapS = THREE.ClampToEdgeWrapping;
+    this.colourMap.needsUpdate = true;
+    this.ctx = this.overlay.getContext('2d')!;
+    this.resize();
+  }
+
+  /** Matches the canvases to the container; returns whether the size changed. */
+  resize(): boolean {
+    const w = Math.max(1, Math.floor(this.container.clientWidth));
+    const h = Math.max(1, Math.floor(this.container.clientHeight));
+    if (w === this.width && h === this.height) return false;
+    this.width = w;
+    this.height = h;
+    this.renderer.setSize(w, h, true);
+    const ratio = this.renderer.getPixelRatio();
+    this.overlay.width = Math.round(w * ratio);
+    this.overlay.height = Math.round(h * ratio);
+    this.overlay.style.width = `${w}px`;
+    this.overlay.style.height = `${h}px`;
+    return true;
+  }
+
+  /** Draws the tiles, each into its view, then their axes. */
+  draw(tiles: Tile[]): void {
+    const r = this.renderer;
+    r.setScissorTest(false);
+    r.setClearColor(BACKGROUND, 1);
+    r.clear(true, true, false);
+    r.setScissorTest(true);
+    for (const tile of tiles) {
+      const v = tile.view;
+      if (!v) continue;
+      const bottom = this.height - v.top - v.height;
+      r.setViewport(v.left, bottom, v.width, v.height);
+      r.setScissor(v.left, bottom, v.width, v.height);
+      r.render(tile.scene, tile.camera);
+    }
+    r.setScissorTest(false);
+    this.drawAxes(tiles);
+    this.frames++;
+  }
+
+  private drawAxes(tiles: Tile[]): void {
+    const ctx = this.ctx;
+    const ratio = this.renderer.getPixelRatio();
+    ctx.setTransform(ratio, 0, 0, ratio, 0, 0);
+    ctx.clearRect(0, 0, this.width, this.height);
+    ctx.font = '10px system-ui, sans-serif';
+    ctx.strokeStyle = '#444';
+    ctx.fillStyle = '#333';
+    ctx.lineWidth = 1;
+    for (const tile of tiles) {
+      const v = tile.view;
+      if (v) drawTileAxes(ctx, v, tile.widthUm, tile.depthUm);
+    }
+  }
+
+  dispose(): void {
+    this.colourMap.dispose();
+    this.renderer.dispose();
+  }
+}
+
+function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: number, depthUm: number): void {
+  const xMin = Math.max(0, v.x0Um);
+  const xMax = Math.min(widthUm, v.x0Um + v.width / v.pxPerUmX);
+  const zMin = Math.max(0, v.z0Um);
+  const zMax = Math.min(depthUm, v.z0Um + v.height / v.pxPerUmZ);
+  if (!(xMax > xMin && zMax > zMin)) return;
+  const px = (x: number) => v.left + (x - v.x0Um) * v.pxPerUmX;
+  const py = (z: number) => v.top + (z - v.z0Um) * v.pxPerUmZ;
+  const axisY = Math.min(v.top + v.height, py(depthUm)) + 0.5;
+  const axisX = Math.max(v.left, px(0)) - 0.5;
+  ctx.beginPath();
+  ctx.moveTo(px(xMin), axisY);
+  ctx.lineTo(px(xMax), axisY);
+  ctx.moveTo(axisX, py(zMin));
+  ctx.lineTo(axisX, py(zMax));
+  const xt = niceTicks(xMin, xMax, Math.max(2, Math.floor((px(xMax) - px(xMin)) / 60)));
+  const zt = niceTicks(zMin, zMax, Math.max(2, Math.floor((py(zMax) - py(zMin)) / 28)));
+  for (const x of xt.values) {
+    ctx.moveTo(Math.round(px(x)) + 0.5, axisY);
+    ctx.lineTo(Math.round(px(x)) + 0.5, axisY + 4);
+  }
+  for (const z of zt.values) {
+    ctx.moveTo(axisX, Math.round(py(z)) + 0.5);
+    ctx.lineTo(axisX - 4, Math.round(py(z)) + 0.5);
+  }
+  ctx.stroke();
+  ctx.textAlign = 'center';
+  ctx.textBaseline = 'top';
+  for (const x of xt.values) ctx.fillText(formatTick(x, xt), px(x), axisY + 5);
+  ctx.textAlign = 'right';
+  ctx.textBaseline = 'middle';
+  for (const z of zt.values) ctx.fillText(formatTick(z, zt), axisX - 6, py(z));
+}
