@@ -1,0 +1,156 @@
+import { analyze } from './analyze.ts';
+import { coarsenedRecipe, richardsonError } from './error-estimate.ts';
+import { planRecipe, type PlanLimits } from './plan.ts';
+import type { Recipe } from './recipe.ts';
+import { simulate } from './simulate.ts';
+import type { PairSpacing } from './spacing.ts';
+
+/**
+ * The narrowest masked stripe between two windows that keeps their junctions at least a
+ * given distance apart, by bisection on the stripe width.
+ *
+ * The pair is the recipe's first two windows (or its one window twice), with their widths and
+ * the distance from each to its side wall kept, so the cross-section grows with the stripe.
+ * A stripe meets the rule when the two diffused regions have not merged and the closest
+ * approach of their junctions is at least the gap asked for. The gap rises with the stripe,
+ * so the narrowest stripe lies between one that fails and one that meets, and bisection
+ * halves that bracket until it is no wider than the tolerance; the answer is its upper end.
+ */
+export interface StripeSolve {
+  stripeUm: number;
+  spacing: PairSpacing;
+  meets: boolean;
+}
+
+export interface StripeSearch {
+  gapUm: number;
+  toleranceUm: number;
+  /** the narrowest stripe found that meets the gap, µm (upper end of the final bracket) */
+  stripeUm: number;
+  /** widest stripe seen that fails and narrowest that meets, µm */
+  bracketUm: [number, number];
+  /** the spacing at the answer */
+  spacing: PairSpacing;
+  solves: StripeSolve[];
+  /** the pair recipe at the answer */
+  recipe: Recipe;
+}
+
+export interface StripeSearchOptions {
+  gapUm: number;
+  toleranceUm: number;
+  limits?: PlanLimits;
+  /** start the bracket around this stripe (µm), e.g. the answer on a finer mesh */
+  guessUm?: number;
+  onSolve?: (solve: StripeSolve, index: number) => void;
+  shouldStop?: () => boolean;
+}
+
+/** Most solves spent widening the bracket before giving up. */
+const MAX_WIDENINGS = 12;
+
+/** The two-window recipe with a stripe of `stripeUm` between the windows. */
+export function pairRecipe(recipe: Recipe, stripeUm: number): Recipe {
+  const sorted = [...recipe.mask.windows].sort((a, b) => a[0] - b[0]);
+  const width = recipe.crossSection.widthUm;
+  const [a0, a1] = sorted[0];
+  const [b0, b1] = sorted.length > 1 ? sorted[1] : sorted[0];
+  const leftMargin = a0;
+  const rightMargin = width - b1;
+  const wa = a1 - a0;
+  const wb = b1 - b0;
+  const x1 = leftMargin + wa;
+  const windows: [number, number][] = [[leftMargin, x1], [x1 + stripeUm, x1 + stripeUm + wb]];
+  return {
+    ...recipe,
+    crossSection: { ...recipe.crossSection, widthUm: x1 + stripeUm + wb + rightMargin },
+    mask: { windows },
+  };
+}
+
+function solvePair(recipe: Recipe, stripeUm: number, gapUm: number, limits?: PlanLimits, shouldStop?: () => boolean): StripeSolve {
+  const report = analyze(simulate(planRecipe(pairRecipe(recipe, stripeUm), limits), { shouldStop })).report;
+  const spacing = report.spacings![0];
+  const meets = !spacing.merged && spacing.minimumGapUm !== null && spacing.minimumGapUm >= gapUm;
+  return { stripeUm, spacing, meets };
+}
+
+export class StripeSearchError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'StripeSearchError';
+  }
+}
+
+export function searchStripe(recipe: Recipe, options: StripeSearchOptions): StripeSearch {
+  const { gapUm, toleranceUm } = options;
+  const solves: StripeSolve[] = [];
+  const run = (s: number) => {
+    const result = solvePair(recipe, s, gapUm, options.limits, options.shouldStop);
+    solves.push(result);
+    options.onSolve?.(result, solves.length - 1);
+    return result;
+  };
+  const done = (lo: number, hi: StripeSolve): StripeSearch => ({
+    gapUm, toleranceUm, stripeUm: hi.stripeUm, bracketUm: [lo, hi.stripeUm], spacing: hi.spacing, solves,
+    recipe: pairRecipe(recipe, hi.stripeUm),
+  });
+  // Without a guess: the junctions reach about plan.reachUm sideways from each mask edge.
+  const guess = options.guessUm ?? gapUm + 2 * planRecipe(recipe, options.limits).reachUm;
+  let reach = options.guessUm !== undefined ? Math.max(4 * toleranceUm, 0.05 * guess) : 0.5 * guess;
+  const first = run(Math.max(toleranceUm, guess));
+  let lo: number;
+  let hi: StripeSolve;
+  if (first.meets) {
+    // Walk narrower, in growing strides, until a stripe fails (or the tolerance itself meets).
+    hi = first;
+    for (;;) {
+      const s = run(Math.max(toleranceUm, hi.stripeUm - reach));
+      if (!s.meets) { lo = s.stripeUm; break; }
+      hi = s;
+      if (s.stripeUm <= toleranceUm) return done(0, hi);
+      reach *= 2;
+    }
+  } else {
+    lo = first.stripeUm;
+    for (let k = 0; ; k++) {
+      const s = run(lo + reach);
+      if (s.meets) { hi = s; break; }
+      if (k >= MAX_WIDENINGS) {
+        throw new StripeSearchError(`no stripe up to ${s.stripeUm.toPrecision(4)} µm keeps a junction-to-junction gap of ${gapUm} µm`);
+      }
+      lo = s.stripeUm;
+      reach *= 2;
+    }
+  }
+  while (hi.stripeUm - lo > toleranceUm) {
+    const s = run(0.5 * (lo + hi.stripeUm));
+    if (s.meets) hi = s;
+    else lo = s.stripeUm;
+  }
+  return done(lo, hi);
+}
+
+export interface StripeSearchWithError extends StripeSearch {
+  /** numerical error of stripeUm from the same search on coarser meshes, µm */
+  stripeErrorUm: number;
+  /** the answers on the meshes h, 2h (and 4h) */
+  stripesByMeshUm: number[];
+}
+
+/**
+ * The search on the default mesh and again on meshes 2 (and 4) times coarser, each started
+ * around the previous answer; Richardson extrapolation of the answers gives its error bar.
+ * The bisection tolerance adds to that; keep it well below the error bar to see the latter.
+ */
+export function searchStripeWithError(recipe: Recipe, options: StripeSearchOptions & { levels?: 1 | 2; onLevel?: (level: number) => void }): StripeSearchWithError {
+  const fine = searchStripe(recipe, options);
+  const answers = [fine.stripeUm];
+  for (let level = 1; level <= (options.levels ?? 1); level++) {
+    options.onLevel?.(level);
+    const coarse = searchStripe(coarsenedRecipe(recipe, level), { ...options, guessUm: answers[answers.length - 1] });
+    answers.push(coarse.stripeUm);
+  }
+  const [f1, f2, f3] = answers;
+  return { ...fine, stripeErrorUm: Number(richardsonError(f1, f2, f3).toPrecision(3)), stripesByMeshUm: answers };
+}
