@@ -6,6 +6,11 @@ export { buildField, stackLayers, type Field } from './field.ts';
 export { BUILTIN_DOPANTS, intrinsicDiffusivityCm2PerS, type Dopant } from './dopants.ts';
 export type { Mesh } from './mesh.ts';
 export type { Polyline, Point } from './junction.ts';
+export { MOBILITY_FITS, mobilityCm2PerVs, conductivitySPerCm, resistivityOhmCm, fitForDopant, type MobilityFit } from './mobility.ts';
+export { coarseReports, coarsenedRecipe, withErrorBars, richardsonError, type ErrorEstimateSummary } from './error-estimate.ts';
+export { searchStripe, searchStripeWithError, pairRecipe, StripeSearchError, type StripeSearch, type StripeSearchWithError, type StripeSolve } from './stripe-search.ts';
+export { reportSchema, reportJsonSchema } from './report-schema.ts';
+export type { PairSpacing } from './spacing.ts';
 
 import { analyze, type Analysis } from './analyze.ts';
 import { planRecipe, type PlanLimits } from './plan.ts';

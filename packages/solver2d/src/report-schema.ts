@@ -1,0 +1,86 @@
+import { z } from 'zod';
+import { REPORT_SCHEMA_ID, type Report } from './analyze.ts';
+import { SPACING_ERROR_KEYS, WINDOW_ERROR_KEYS } from './error-estimate.ts';
+
+/**
+ * The report contract ("edgewise.report/1") as a schema, for `edgewise schema report` and for
+ * checking a report file. It mirrors `Report` in analyze.ts; the two assignments at the end
+ * make the compiler refuse a schema that has drifted from the type.
+ */
+const length = z.number().nullable();
+const counts = z.record(z.string(), z.number());
+const point = z.tuple([z.number(), z.number()]);
+
+function errorBars<K extends string>(keys: readonly K[], unit: string) {
+  const shape = Object.fromEntries(keys.map((k) => [k, z.number().nullable().optional()])) as Record<K, z.ZodOptional<z.ZodNullable<z.ZodNumber>>>;
+  return z.strictObject(shape).describe(`numerical error of each field named, in its unit (${unit}): Richardson extrapolation from coarser solves`);
+}
+
+const windowReport = z.strictObject({
+  x0Um: z.number(),
+  x1Um: z.number(),
+  centreUm: z.number(),
+  junctionDepthUm: length.describe('shallowest junction below the window centre, µm'),
+  junctionDepthsUm: z.array(z.number()).describe('every junction below the window centre, from the surface down, µm'),
+  lateralLeftUm: length.describe('reach of the surface junction beyond x0, under the mask, µm'),
+  lateralRightUm: length.describe('reach of the surface junction beyond x1, under the mask, µm'),
+  lateralToVerticalRatio: z.number().nullable(),
+  surfaceConcentrationCm3: z.number(),
+  surfaceBySpeciesCm3: counts,
+  centreDoseCm2: counts,
+  sheetResistanceOhmSq: length.optional().describe('sheet resistance below the window centre, surface to junction, Ω/sq'),
+  lineResistanceOhmPerUm: length.optional().describe('resistance per µm of a long line of this drawn width, Ω/µm'),
+  effectiveWidthUm: length.optional().describe('electrical width: line conductance × centre sheet resistance, µm'),
+  drawnPlusLateralUm: length.optional().describe('drawn width plus both lateral encroachments, µm'),
+  curvatureRadiusLeftUm: length.optional().describe('radius of the junction at the middle of its turn under the left mask edge, µm'),
+  curvatureRadiusRightUm: length.optional(),
+  errors: errorBars(WINDOW_ERROR_KEYS, 'µm, Ω/sq, Ω/µm').optional(),
+});
+
+const pairSpacing = z.strictObject({
+  left: z.number().int(),
+  right: z.number().int(),
+  stripeUm: z.number(),
+  surfaceGapUm: length.describe('gap between the two junctions at the surface, µm; 0 once merged there'),
+  minimumGapUm: length.describe('closest approach of the two junctions, µm; 0 once merged'),
+  minimumGapDepthUm: length,
+  merged: z.boolean(),
+  errors: errorBars(SPACING_ERROR_KEYS, 'µm').optional(),
+});
+
+const ledgerEntry = z.strictObject({ enteredCm2: z.number(), inSiliconCm2: z.number(), relativeImbalance: z.number() });
+
+export const reportSchema = z.strictObject({
+  schema: z.literal(REPORT_SCHEMA_ID),
+  title: z.string().nullable(),
+  substrate: z.strictObject({ dopant: z.string(), type: z.string(), concentrationCm3: z.number() }),
+  crossSection: z.strictObject({ widthUm: z.number(), depthUm: z.number() }),
+  mesh: z.strictObject({ columns: z.number().int(), rows: z.number().int(), finestXUm: z.number(), finestZUm: z.number() }),
+  windows: z.array(windowReport),
+  spacings: z.array(pairSpacing).optional().describe('neighbouring windows in x order'),
+  mobility: z.strictObject({ carrier: z.enum(['electron', 'hole']), fit: z.string(), source: z.string() }).optional(),
+  errorEstimate: z.strictObject({
+    method: z.string(),
+    meshes: z.array(z.strictObject({ refine: z.number(), stepGrowth: z.number(), columns: z.number().int(), rows: z.number().int() })),
+    observedOrder: z.number().nullable(),
+  }).optional(),
+  junctions: z.array(z.strictObject({ polylinesUm: z.array(z.array(point)) })),
+  doseCm2: counts,
+  ledger: z.record(z.string(), ledgerEntry),
+  thermalBudgetUm2: counts,
+  steps: z.array(z.strictObject({
+    index: z.number().int(), kind: z.string(), temperatureC: z.number().nullable(), minutes: z.number(), timeSteps: z.number().int(),
+  })),
+  field: z.strictObject({ layers: z.array(z.string()), shape: z.tuple([z.number().int(), z.number().int(), z.number().int()]) }),
+  warnings: z.array(z.string()),
+});
+
+// Both directions: a report is valid against the schema, and what the schema accepts is a report.
+const _schemaCoversReport = (r: Report): z.input<typeof reportSchema> => r;
+const _reportCoversSchema = (r: z.output<typeof reportSchema>): Report => r;
+void _schemaCoversReport;
+void _reportCoversSchema;
+
+export function reportJsonSchema(): Record<string, unknown> {
+  return { $id: REPORT_SCHEMA_ID, title: 'Edgewise report', ...z.toJSONSchema(reportSchema) };
+}
