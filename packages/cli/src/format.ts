@@ -19,3 +19,15 @@ export function table(header: string[], rows: string[][]): string {
   const line = (cells: string[]) => cells.map((c, k) => (k === 0 ? c.padEnd(widths[k]) : c.padStart(widths[k]))).join('  ');
   return [line(header), ...rows.map(line)].join('\n');
 }
+
+/**
+ * A value with its error bar, "1.0648 ± 0.0004": the error to one significant digit and the
+ * value to the same decimal place (at least `digits` decimals). Without an error bar, the value alone.
+ */
+export function fmtPlusMinus(v: number | null, error: number | null | undefined, digits = 3): string {
+  if (v === null) return '—';
+  if (error === null || error === undefined || !Number.isFinite(error)) return v.toFixed(digits);
+  if (error === 0) return `${v.toFixed(digits)} ± 0`;
+  const place = Math.min(8, Math.max(digits, -Math.floor(Math.log10(error))));
+  return `${v.toFixed(place)} ± ${error.toFixed(place)}`;
+}

@@ -1,6 +1,7 @@
 import type { Analysis } from '@edgewise/solver2d';
 import { stackLayers } from '@edgewise/solver2d';
 import { encodeNpy, inside, writeAtomic } from './files.ts';
+import { contourSvg } from './svg.ts';
 
 /** The files of one run folder (contracts in DEVELOPERS.md). Returns the names written. */
 export function writeRunFolder(folder: string, analysis: Analysis): string[] {
@@ -15,6 +16,7 @@ export function writeRunFolder(folder: string, analysis: Analysis): string[] {
   put('x.npy', encodeNpy(mesh.x, [mesh.nx]));
   put('z.npy', encodeNpy(mesh.z, [mesh.nz]));
   put('contour.csv', contourCsv(analysis));
+  put('contour.svg', contourSvg(report));
   // The report last: its presence marks a complete folder.
   put('report.json', `${JSON.stringify(report, null, 2)}\n`);
   return written;

@@ -1,13 +1,22 @@
 import { basename, extname, join } from 'node:path';
 import { parseArgs } from 'node:util';
-import { analyze, parseRecipe, planRecipe, simulate, type Analysis, type Report } from '@edgewise/solver2d';
+import { analyze, coarseReports, parseRecipe, planRecipe, simulate, withErrorBars, type Analysis, type Report } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
-import { fmtLength, fmtRatio, fmtSci, table } from '../format.ts';
+import { fmtLength, fmtPlusMinus, fmtRatio, fmtSci, table } from '../format.ts';
 import { writeRunFolder } from '../output.ts';
 import { progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
 
-export const RUN_USAGE = 'edgewise run RECIPE [--out DIR] [--quiet]';
+export const RUN_USAGE = 'edgewise run RECIPE [--out DIR] [--error-solves 0|1|2] [--quiet]';
+
+/** Coarser solves for the error bars: 1 (mesh 2h, formal order) or 2 (2h and 4h, measured order). */
+const DEFAULT_ERROR_SOLVES = 2;
+
+export function parseErrorSolves(text: string | undefined): 0 | 1 | 2 {
+  if (text === undefined) return DEFAULT_ERROR_SOLVES;
+  if (text !== '0' && text !== '1' && text !== '2') throw new UsageError(`--error-solves: must be 0, 1 or 2 coarser solves for the error bars (got ${JSON.stringify(text)})`);
+  return Number(text) as 0 | 1 | 2;
+}
 
 export function defaultOutFolder(recipePath: string): string {
   return join('out', basename(recipePath, extname(recipePath)));
@@ -16,8 +25,9 @@ export function defaultOutFolder(recipePath: string): string {
 export function runCommand(args: string[]): number {
   const { values, positionals } = parseArgs({
     args, allowPositionals: true, strict: true,
-    options: { out: { type: 'string' }, quiet: { type: 'boolean', default: false } },
+    options: { out: { type: 'string' }, 'error-solves': { type: 'string' }, quiet: { type: 'boolean', default: false } },
   });
+  const errorSolves = parseErrorSolves(values['error-solves']);
   if (positionals.length !== 1) throw new UsageError(`run takes one recipe file (usage: ${RUN_USAGE})`);
   const recipePath = positionals[0];
   const out = values.out ?? defaultOutFolder(recipePath);
@@ -27,9 +37,21 @@ export function runCommand(args: string[]): number {
   const sim = simulate(plan, { onProgress: (p) => progress.update(p.done / p.total) });
   progress.done();
   const analysis = analyze(sim);
+  const solved = performance.now();
+  if (errorSolves !== 0) {
+    const coarse = progressReporter(values.quiet ? null : process.stderr, 'error bars');
+    let level = 1;
+    const reports = coarseReports(plan.recipe, {
+      levels: errorSolves, onLevel: (l) => { level = l; },
+      onProgress: (p) => coarse.update((level - 1 + p.done / p.total) / errorSolves, `coarser solve ${level} of ${errorSolves}`),
+    });
+    coarse.done();
+    analysis.report = withErrorBars([analysis.report, ...reports], plan.recipe);
+  }
   const written = writeRunFolder(out, analysis);
-  const seconds = (performance.now() - started) / 1000;
-  process.stdout.write(`${summary(analysis, seconds)}\nwrote ${out}/: ${written.join(', ')}\n`);
+  const now = performance.now();
+  const timing = { seconds: (now - started) / 1000, errorSeconds: errorSolves > 0 ? (now - solved) / 1000 : null };
+  process.stdout.write(`${summary(analysis, timing.seconds, timing.errorSeconds)}\nwrote ${out}/: ${written.join(', ')}\n`);
   for (const w of analysis.report.warnings) process.stderr.write(`warning: ${w}\n`);
   return 0;
 }
@@ -38,14 +60,40 @@ export function windowTable(report: Report): string {
   return table(
     ['window', 'x0 µm', 'x1 µm', 'xj µm', 'lateral L µm', 'lateral R µm', 'lateral/xj', 'surface cm^-3'],
     report.windows.map((w, k) => [
-      String(k + 1), fmtLength(w.x0Um, 2), fmtLength(w.x1Um, 2), fmtLength(w.junctionDepthUm),
-      fmtLength(w.lateralLeftUm), fmtLength(w.lateralRightUm), fmtRatio(w.lateralToVerticalRatio),
-      fmtSci(w.surfaceConcentrationCm3),
+      String(k + 1), fmtLength(w.x0Um, 2), fmtLength(w.x1Um, 2), fmtPlusMinus(w.junctionDepthUm, w.errors?.junctionDepthUm),
+      fmtPlusMinus(w.lateralLeftUm, w.errors?.lateralLeftUm), fmtPlusMinus(w.lateralRightUm, w.errors?.lateralRightUm),
+      fmtRatio(w.lateralToVerticalRatio), fmtSci(w.surfaceConcentrationCm3),
     ]),
   );
 }
 
-export function summary({ report }: Analysis, seconds: number): string {
+/** Sheet and line resistance, effective width and edge curvature, per window. */
+export function resistanceTable(report: Report): string {
+  const sig = (v: number | null | undefined) => (v === null || v === undefined ? '—' : Number(v.toPrecision(4)).toString());
+  const pm = (v: number | null | undefined, e: number | null | undefined) =>
+    v === null || v === undefined ? '—' : e === null || e === undefined ? sig(v) : `${sig(v)} ± ${Number(e.toPrecision(1))}`;
+  return table(
+    ['window', 'Rs Ω/sq', 'line Ω/µm', 'W eff µm', 'W+2·lateral µm', 'radius L µm', 'radius R µm'],
+    report.windows.map((w, k) => [
+      String(k + 1), pm(w.sheetResistanceOhmSq, w.errors?.sheetResistanceOhmSq), pm(w.lineResistanceOhmPerUm, w.errors?.lineResistanceOhmPerUm),
+      fmtPlusMinus(w.effectiveWidthUm ?? null, w.errors?.effectiveWidthUm), fmtPlusMinus(w.drawnPlusLateralUm ?? null, w.errors?.drawnPlusLateralUm),
+      fmtPlusMinus(w.curvatureRadiusLeftUm ?? null, w.errors?.curvatureRadiusLeftUm), fmtPlusMinus(w.curvatureRadiusRightUm ?? null, w.errors?.curvatureRadiusRightUm),
+    ]),
+  );
+}
+
+/** Junction-to-junction spacing across each masked stripe between neighbouring windows. */
+export function spacingTable(report: Report): string {
+  return table(
+    ['windows', 'stripe µm', 'surface gap µm', 'closest gap µm', 'at depth µm', 'merged'],
+    (report.spacings ?? []).map((s) => [
+      `${s.left + 1}–${s.right + 1}`, fmtLength(s.stripeUm, 2), fmtPlusMinus(s.surfaceGapUm, s.errors?.surfaceGapUm),
+      fmtPlusMinus(s.minimumGapUm, s.errors?.minimumGapUm), fmtLength(s.minimumGapDepthUm), s.merged ? 'yes' : 'no',
+    ]),
+  );
+}
+
+export function summary({ report }: Analysis, seconds: number, errorSeconds: number | null = null): string {
   const head = report.title ? `${report.title}\n` : '';
   const mesh = `mesh ${report.mesh.columns} × ${report.mesh.rows} (finest ${report.mesh.finestXUm} µm across, ${report.mesh.finestZUm} µm down), ` +
     `${report.steps.reduce((n, s) => n + s.timeSteps, 0)} time steps, ${seconds.toFixed(2)} s`;
@@ -53,5 +101,13 @@ export function summary({ report }: Analysis, seconds: number): string {
     .map(([name, dose]) => `${name} ${fmtSci(dose)} cm^-2 (ledger imbalance ${fmtSci(report.ledger[name].relativeImbalance, 1)})`)
     .join('; ');
   const budgets = Object.entries(report.thermalBudgetUm2).map(([name, b]) => `${name} ${fmtSci(b)} µm²`).join('; ');
-  return `${head}${mesh}\n\n${windowTable(report)}\n\ndose per open area: ${doses}\nthermal budget ∫D dt: ${budgets}`;
+  const errors = report.errorEstimate
+    ? `error bars (±): ${report.errorEstimate.meshes.length - 1} coarser solve(s), meshes ${report.errorEstimate.meshes.map((m) => `${m.columns} × ${m.rows}`).join(', ')}` +
+      `${report.errorEstimate.observedOrder === null ? ', formal order 2' : `, observed order ${report.errorEstimate.observedOrder}`}` +
+      `${errorSeconds === null ? '' : `, ${errorSeconds.toFixed(2)} s`}\n`
+    : 'no error bars (--error-solves 0)\n';
+  const spacing = report.spacings && report.spacings.length > 0 ? `\n\n${spacingTable(report)}` : '';
+  const mobility = report.mobility ? `\nmobility: ${report.mobility.carrier}s, ${report.mobility.fit} fit of ${report.mobility.source}` : '';
+  return `${head}${mesh}\n${errors}\n${windowTable(report)}\n\n${resistanceTable(report)}${spacing}\n\n` +
+    `dose per open area: ${doses}\nthermal budget ∫D dt: ${budgets}${mobility}`;
 }
