@@ -2,6 +2,7 @@ import { RecipeError, SolverError } from '@edgewise/solver2d';
 import { mergeCommand, MERGE_USAGE } from './commands/merge.ts';
 import { runCommand, RUN_USAGE } from './commands/run.ts';
 import { schemaCommand, SCHEMA_USAGE } from './commands/schema.ts';
+import { spacingCommand, SPACING_USAGE } from './commands/spacing.ts';
 import { viewCommand, VIEW_USAGE } from './commands/view.ts';
 import { sweepCommand, SWEEP_USAGE } from './commands/sweep.ts';
 import { InputError, UsageError } from './errors.ts';
@@ -12,6 +13,7 @@ type Command = (args: string[]) => number | Promise<number>;
 const COMMANDS: Record<string, { run: Command; usage: string }> = {
   run: { run: runCommand, usage: RUN_USAGE },
   schema: { run: schemaCommand, usage: SCHEMA_USAGE },
+  spacing: { run: spacingCommand, usage: SPACING_USAGE },
   view: { run: viewCommand, usage: VIEW_USAGE },
   sweep: { run: sweepCommand, usage: SWEEP_USAGE },
   merge: { run: mergeCommand, usage: MERGE_USAGE },

@@ -132,8 +132,8 @@ export function searchStripe(recipe: Recipe, options: StripeSearchOptions): Stri
 }
 
 export interface StripeSearchWithError extends StripeSearch {
-  /** numerical error of stripeUm from the same search on coarser meshes, µm */
-  stripeErrorUm: number;
+  /** numerical error of stripeUm from the same search on coarser meshes, µm; null with no coarser search */
+  stripeErrorUm: number | null;
   /** the answers on the meshes h, 2h (and 4h) */
   stripesByMeshUm: number[];
 }
@@ -143,7 +143,7 @@ export interface StripeSearchWithError extends StripeSearch {
  * around the previous answer; Richardson extrapolation of the answers gives its error bar.
  * The bisection tolerance adds to that; keep it well below the error bar to see the latter.
  */
-export function searchStripeWithError(recipe: Recipe, options: StripeSearchOptions & { levels?: 1 | 2; onLevel?: (level: number) => void }): StripeSearchWithError {
+export function searchStripeWithError(recipe: Recipe, options: StripeSearchOptions & { levels?: 0 | 1 | 2; onLevel?: (level: number) => void }): StripeSearchWithError {
   const fine = searchStripe(recipe, options);
   const answers = [fine.stripeUm];
   for (let level = 1; level <= (options.levels ?? 1); level++) {
@@ -152,5 +152,6 @@ export function searchStripeWithError(recipe: Recipe, options: StripeSearchOptio
     answers.push(coarse.stripeUm);
   }
   const [f1, f2, f3] = answers;
-  return { ...fine, stripeErrorUm: Number(richardsonError(f1, f2, f3).toPrecision(3)), stripesByMeshUm: answers };
+  const stripeErrorUm = f2 === undefined ? null : Number(richardsonError(f1, f2, f3).toPrecision(3));
+  return { ...fine, stripeErrorUm, stripesByMeshUm: answers };
 }
