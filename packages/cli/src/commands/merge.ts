@@ -75,6 +75,9 @@ export function mergeCommand(args: string[]): number {
     if (s.doc.sweepSha256 !== first.doc.sweepSha256) {
       throw new UsageError(`merge: ${where(s)} is from a different sweep than ${where(first)} (other recipe, values or parameters)`);
     }
+    if (s.doc.errorSolves !== first.doc.errorSolves) {
+      throw new UsageError(`merge: ${where(s)} has error bars from ${s.doc.errorSolves} coarser solves, ${where(first)} from ${first.doc.errorSolves}; run every shard with the same --error-solves`);
+    }
     if (s.header.join() !== first.header.join()) throw new UsageError(`merge: ${where(s)} has other columns than ${where(first)}`);
   }
   const count = first.doc.shard!.count;

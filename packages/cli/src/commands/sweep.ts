@@ -12,9 +12,10 @@ import { workerBundle, WorkerPool } from '../sweep/pool.ts';
 import { SWEEP_SCHEMA_ID, writeSweepFiles, type SweepDocument } from '../sweep/record.ts';
 import { finishedRun, removeStaleTemps } from '../sweep/resume.ts';
 import { inShard, parseShard, sweepStem, type Shard } from '../sweep/shard.ts';
+import type { ErrorSolves } from '../sweep/task.ts';
 
 export const SWEEP_USAGE =
-  'edgewise sweep RECIPE [--widths RANGE] [--set PATH=VALUES]… [--out DIR] [--jobs N] [--resume] [--shard K/N] [--quiet]';
+  'edgewise sweep RECIPE [--widths RANGE] [--set PATH=VALUES]… [--out DIR] [--jobs N] [--error-solves 0|1|2] [--resume] [--shard K/N] [--quiet]';
 
 /** Exit codes beyond main.ts's 0 (ok), 1 (internal failure) and 2 (bad input). */
 export const EXIT_RUNS_FAILED = 3;
@@ -22,6 +23,8 @@ export const EXIT_INTERRUPTED = 130;
 export const EXIT_TERMINATED = 143;
 
 export const MAX_JOBS = 256;
+/** Coarser solves behind each run's error bars, as for a single run: 2 (meshes 2h and 4h). */
+export const DEFAULT_ERROR_SOLVES: ErrorSolves = 2;
 /** sweep.csv and sweep.json are rewritten at most this often while runs finish. */
 const RECORD_EVERY_MS = 1000;
 
@@ -34,6 +37,14 @@ function parseJobs(text: string | undefined): number {
   const n = /^\s*\d+\s*$/.test(text) ? Number(text) : NaN;
   if (!(n >= 1 && n <= MAX_JOBS)) throw new UsageError(`--jobs ${JSON.stringify(text)}: expected a whole number from 1 to ${MAX_JOBS} (worker threads; default: the number of cores, ${availableParallelism()})`);
   return n;
+}
+
+function parseErrorSolves(text: string | undefined): ErrorSolves {
+  if (text === undefined) return DEFAULT_ERROR_SOLVES;
+  if (text !== '0' && text !== '1' && text !== '2') {
+    throw new UsageError(`--error-solves ${JSON.stringify(text)}: expected 0, 1 or 2 coarser solves per run for the error bars (default ${DEFAULT_ERROR_SOLVES})`);
+  }
+  return Number(text) as ErrorSolves;
 }
 
 function errorText(e: unknown): string {
@@ -50,6 +61,7 @@ export async function sweepCommand(args: string[]): Promise<number> {
       set: { type: 'string', multiple: true, default: [] },
       out: { type: 'string' },
       jobs: { type: 'string' },
+      'error-solves': { type: 'string' },
       resume: { type: 'boolean', default: false },
       shard: { type: 'string' },
       quiet: { type: 'boolean', default: false },
@@ -58,17 +70,19 @@ export async function sweepCommand(args: string[]): Promise<number> {
   if (positionals.length !== 1) throw new UsageError(`sweep takes one recipe file (usage: ${SWEEP_USAGE})`);
   const recipePath = positionals[0];
   const jobs = parseJobs(values.jobs);
+  const errorSolves = parseErrorSolves(values['error-solves']);
   const shard = values.shard === undefined ? null : parseShard(values.shard);
   const out = values.out ?? defaultSweepFolder(recipePath);
   if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${out}: is a file, not a folder`);
   // Every run is built and validated here; nothing is written before this line succeeds.
   const matrix = buildMatrix(readRecipeFile(recipePath), { widths: values.widths, set: values.set });
-  return runSweep(matrix, { out, jobs, shard, resume: values.resume, quiet: values.quiet });
+  return runSweep(matrix, { out, jobs, errorSolves, shard, resume: values.resume, quiet: values.quiet });
 }
 
 interface SweepOptions {
   out: string;
   jobs: number;
+  errorSolves: ErrorSolves;
   shard: Shard | null;
   resume: boolean;
   quiet: boolean;
@@ -88,7 +102,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
   for (const run of mine) {
     const folder = join(out, run.dir);
     removeStaleTemps(folder, null);
-    const windows = options.resume ? finishedRun(folder, run.recipeSha256) : null;
+    const windows = options.resume ? finishedRun(folder, run.recipeSha256, options.errorSolves) : null;
     if (windows) {
       rows.set(run.id, { id: run.id, values: run.values, windows, status: 'ok', error: null });
       reused++;
@@ -102,7 +116,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
     const doc: SweepDocument = {
       schema: SWEEP_SCHEMA_ID, title: matrix.title,
       parameters: matrix.parameters.map((p) => p.name), windows: matrix.windows,
-      total: matrix.runs.length, shard, sweepSha256: matrix.sweepSha256,
+      total: matrix.runs.length, shard, sweepSha256: matrix.sweepSha256, errorSolves: options.errorSolves,
       runs: mine.map((r, k) => ({
         id: r.id, dir: r.dir, values: r.values, status: ordered[k].status, error: ordered[k].error, recipeSha256: r.recipeSha256,
       })),
@@ -153,7 +167,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
       const recipe = runRecipe(matrix.base, matrix.parameters, run.values);
       const row = rows.get(run.id)!;
       try {
-        const outcome = await currentPool.run({ id: run.id, folder: resolve(out, run.dir), recipe, recipeText: `${JSON.stringify(recipe, null, 2)}\n` });
+        const outcome = await currentPool.run({ id: run.id, folder: resolve(out, run.dir), recipe, recipeText: `${JSON.stringify(recipe, null, 2)}\n`, errorSolves: options.errorSolves });
         row.windows = outcome.windows;
         row.status = 'ok';
         for (const w of outcome.warnings) warnings.push(`run ${run.id}: ${w}`);
@@ -211,6 +225,12 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
   return 0;
 }
 
+/** A length with its error bar when there is one: `0.776 ± 0.0012`. */
+function withError(v: number | null | undefined, error: number | null | undefined): string {
+  if (v === null || v === undefined) return fmtLength(null);
+  return error === null || error === undefined ? fmtLength(v) : `${fmtLength(v)} ± ${error.toPrecision(2)}`;
+}
+
 /** One line per run (per window when there are several), the swept values first. */
 function summaryTable(matrix: SweepMatrix, rows: readonly RunRow[]): string {
   const names = matrix.parameters.map((p) => p.name);
@@ -222,7 +242,8 @@ function summaryTable(matrix: SweepMatrix, rows: readonly RunRow[]): string {
       const w = r.windows?.[k];
       body.push([
         String(r.id), ...names.map((n) => String(r.values[n])), ...(several ? [String(k + 1)] : []),
-        fmtLength(w?.junctionDepthUm ?? null), fmtLength(w?.lateralLeftUm ?? null), fmtLength(w?.lateralRightUm ?? null),
+        withError(w?.junctionDepthUm, w?.errors?.junctionDepthUm), withError(w?.lateralLeftUm, w?.errors?.lateralLeftUm),
+        withError(w?.lateralRightUm, w?.errors?.lateralRightUm),
         fmtRatio(w?.lateralToVerticalRatio ?? null), w ? fmtSci(w.surfaceConcentrationCm3) : '—', r.status,
       ]);
     }

@@ -2,13 +2,28 @@ import type { WindowReport } from '@edgewise/solver2d';
 
 /**
  * sweep.csv: one row per run — id, the swept values, then per window the junction depth,
- * lateral encroachment at each edge, their ratio and the surface concentration, then the
- * run's status and error. Quoting follows RFC 4180 (fields with a comma, quote or line
- * break are quoted, quotes doubled).
+ * lateral encroachment at each edge (each with its numerical error bar, empty without error
+ * solves), their ratio and the surface concentration, then the run's status and error.
+ * Quoting follows RFC 4180 (fields with a comma, quote or line break are quoted, quotes doubled).
  */
-export const WINDOW_COLUMNS = [
-  'junctionDepthUm', 'lateralLeftUm', 'lateralRightUm', 'lateralToVerticalRatio', 'surfaceConcentrationCm3',
-] as const satisfies readonly (keyof WindowReport)[];
+type Measured = 'junctionDepthUm' | 'lateralLeftUm' | 'lateralRightUm';
+type Plain = 'lateralToVerticalRatio' | 'surfaceConcentrationCm3';
+
+/** Each column: its name and the report field it holds (an error bar when `error` is set). */
+const COLUMNS: readonly { name: string; field: Measured | Plain; error?: true }[] = [
+  { name: 'junctionDepthUm', field: 'junctionDepthUm' },
+  { name: 'junctionDepthErrorUm', field: 'junctionDepthUm', error: true },
+  { name: 'lateralLeftUm', field: 'lateralLeftUm' },
+  { name: 'lateralLeftErrorUm', field: 'lateralLeftUm', error: true },
+  { name: 'lateralRightUm', field: 'lateralRightUm' },
+  { name: 'lateralRightErrorUm', field: 'lateralRightUm', error: true },
+  { name: 'lateralToVerticalRatio', field: 'lateralToVerticalRatio' },
+  { name: 'surfaceConcentrationCm3', field: 'surfaceConcentrationCm3' },
+];
+
+export const WINDOW_COLUMNS = COLUMNS.map((c) => c.name);
+
+export type WindowResult = Pick<WindowReport, Measured | Plain> & { errors?: Partial<Record<string, number | null>> };
 
 export type RunStatus = 'ok' | 'failed' | 'abandoned' | 'pending';
 
@@ -16,7 +31,7 @@ export interface RunRow {
   id: number;
   values: Record<string, number>;
   /** the report's windows, when the run finished */
-  windows: Pick<WindowReport, (typeof WINDOW_COLUMNS)[number]>[] | null;
+  windows: WindowResult[] | null;
   status: RunStatus;
   error: string | null;
 }
@@ -39,7 +54,7 @@ export function csvRow(row: RunRow, parameters: readonly string[], windows: numb
   const metrics: string[] = [];
   for (let k = 0; k < windows; k++) {
     const w = row.windows?.[k];
-    for (const c of WINDOW_COLUMNS) metrics.push(numberCell(w?.[c]));
+    for (const c of COLUMNS) metrics.push(numberCell(c.error ? w?.errors?.[c.field] : w?.[c.field]));
   }
   return [String(row.id), ...parameters.map((p) => numberCell(row.values[p])), ...metrics, row.status, row.error ?? ''];
 }

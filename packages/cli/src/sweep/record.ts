@@ -30,6 +30,8 @@ export interface SweepDocument {
   shard: Shard | null;
   /** identity of the whole sweep, the same in every shard: merge refuses to mix sweeps */
   sweepSha256: string;
+  /** coarser solves behind each run's error bars */
+  errorSolves: number;
   runs: SweepRunEntry[];
 }
 

@@ -6,14 +6,17 @@ import { RECIPE_FILE } from './task.ts';
 
 /**
  * The report's windows if `folder` holds a finished run of the recipe with this hash: its
- * recipe.json (written last) hashes the same and its report.json is a report. Otherwise null.
+ * recipe.json (written last) hashes the same, and its report.json is a report with error bars
+ * from as many coarser solves as asked for. Otherwise null.
  */
-export function finishedRun(folder: string, expectedSha256: string): WindowReport[] | null {
+export function finishedRun(folder: string, expectedSha256: string, errorSolves: number): WindowReport[] | null {
   try {
     const recipe: unknown = JSON.parse(readFileSync(join(folder, RECIPE_FILE), 'utf8'));
     if (recipeSha256(recipe) !== expectedSha256) return null;
-    const report = JSON.parse(readFileSync(join(folder, 'report.json'), 'utf8')) as { schema?: unknown; windows?: unknown };
+    const report = JSON.parse(readFileSync(join(folder, 'report.json'), 'utf8')) as
+      { schema?: unknown; windows?: unknown; errorEstimate?: { meshes?: unknown[] } };
     if (report.schema !== REPORT_SCHEMA_ID || !Array.isArray(report.windows)) return null;
+    if ((report.errorEstimate?.meshes?.length ?? 1) !== errorSolves + 1) return null;
     return report.windows as WindowReport[];
   } catch {
     return null;

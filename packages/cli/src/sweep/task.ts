@@ -8,7 +8,11 @@ export interface RunTask {
   recipe: Record<string, unknown>;
   /** the recipe as written to the folder's recipe.json */
   recipeText: string;
+  /** coarser solves for the error bars (0: none; 1: mesh 2h; 2: 2h and 4h) */
+  errorSolves: ErrorSolves;
 }
+
+export type ErrorSolves = 0 | 1 | 2;
 
 export interface RunOutcome {
   windows: WindowReport[];
