@@ -81,6 +81,10 @@ export class AdiStepper {
   private readonly up: Float64Array;
   private readonly star: Float64Array;
   private readonly savedRows: Float64Array;
+  /** ν per node, transposed, and a scratch line of Thomas factors, for variable D */
+  private readonly nuT: Float64Array;
+  private readonly cpLine: Float64Array;
+  private readonly cpBlock: Float64Array;
 
   constructor(mesh: Mesh, mask: Mask) {
     const { nx, nz, x, dx, z, dzVolume } = mesh;
@@ -122,6 +126,9 @@ export class AdiStepper {
     };
     this.star = new Float64Array(nx * nz);
     this.savedRows = new Float64Array(2 * nx);
+    this.nuT = new Float64Array(nx * nz);
+    this.cpLine = new Float64Array(n);
+    this.cpBlock = new Float64Array(4 * n);
   }
 
   /** Atoms per unit length of cross-section, in cm^-3·µm², i.e. Σ C·Δx·Δz. */
@@ -178,6 +185,25 @@ export class AdiStepper {
     return held ? this.inflow(c, nu, pr) : 0;
   }
 
+  /**
+   * The same step with D varying in space (concentration-dependent diffusion): `nu` holds
+   * ν = D·τ at every node (row-major, like `c`); a face takes the mean of its two nodes.
+   * Lines are factorised one at a time since no two share a matrix.
+   */
+  stepVariable(c: Float64Array, nu: Float64Array, scheme: Scheme, held: boolean, surfaceValue: number): number {
+    const { nx, nz, nuT, ax, cx, az, cz } = this;
+    const pr = scheme === 'peaceman-rachford';
+    const implicit = pr ? 0.5 : 1;
+    const explicit = pr ? 0.5 : 0;
+    if (held) this.savedRows.set(c.subarray(0, 2 * nx));
+    for (let j = 0; j < nz; j++) for (let i = 0; i < nx; i++) nuT[i * nz + j] = nu[j * nx + i];
+    const rowHeld = held ? this.surfaceRowKind : this.noneHeldX;
+    const columnHeld = held ? this.openColumnKind : this.sealedZKind;
+    variableSweep(c, this.star, nu, nx, nz, ax, cx, az, cz, implicit, explicit, this.cpBlock, rowHeld, this.open, false, surfaceValue);
+    variableSweep(this.star, c, nuT, nz, nx, az, cz, ax, cx, implicit, explicit, this.cpBlock, columnHeld, this.zSweep.heldAlong, true, surfaceValue);
+    return held ? this.inflowVariable(c, nu, pr) : 0;
+  }
+
   /** Factorises I − β·Ax and I − β·Az (sealed and held variants) and sets the explicit part. */
   private prepare(beta: number, explicit: number, held: boolean): void {
     const { nx, nz, ax, cx, az, cz, lo, di, up, open, xSweep, zSweep } = this;
@@ -221,6 +247,23 @@ export class AdiStepper {
     }
     xSweep.kind = held ? this.surfaceRowKind : this.noneHeldX;
     zSweep.kind = held ? this.openColumnKind : this.sealedZKind;
+  }
+
+  /** As `inflow`, with ν per node; a face takes the mean of its two nodes. */
+  private inflowVariable(c: Float64Array, nu: Float64Array, pr: boolean): number {
+    const { nx, nz, ax, cx, cz, open, star, savedRows, volumeX, volumeZ } = this;
+    let total = 0;
+    for (let i = 0; i < nx; i++) {
+      if (open[i] !== 1) continue;
+      const s = star[i * nz];
+      let divX = 0;
+      if (i > 0) divX += 0.5 * (nu[i - 1] + nu[i]) * ax[i] * (star[(i - 1) * nz] - s);
+      if (i < nx - 1) divX += 0.5 * (nu[i + 1] + nu[i]) * cx[i] * (star[(i + 1) * nz] - s);
+      const c0 = pr ? 0.5 * (c[i] + savedRows[i]) : c[i];
+      const c1 = pr ? 0.5 * (c[nx + i] + savedRows[nx + i]) : c[nx + i];
+      total -= volumeX[i] * volumeZ[0] * (divX + 0.5 * (nu[i] + nu[nx + i]) * cz[0] * (c1 - c0));
+    }
+    return total;
   }
 
   /**
@@ -327,5 +370,148 @@ function sweepLine(src: Float64Array, dst: Float64Array, s: SweepSetup, q: numbe
     const o = k * m + q;
     y = dst[o] - cp[k] * y;
     dst[o] = y;
+  }
+}
+
+/**
+ * Every line of a variable-coefficient half step: blocks of four lines of one kind, the
+ * rest (held lines of a row sweep, mixed blocks, the remainder) one at a time. `firstOnly`
+ * says a held line is held at position 0 only, which a block can take.
+ */
+function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, n: number, m: number,
+                       gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
+                       beta: number, e: number, cp: Float64Array, kind: Uint8Array, heldAlong: Uint8Array,
+                       firstOnly: boolean, heldValue: number): void {
+  let q = 0;
+  for (; q + 4 <= m; q += 4) {
+    const k0 = kind[q];
+    const uniform = k0 === kind[q + 1] && k0 === kind[q + 2] && k0 === kind[q + 3];
+    if (uniform && (k0 === 0 || firstOnly)) {
+      variableBlock(src, dst, nu, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, k0 === 1, heldValue);
+    } else {
+      for (let r = q; r < q + 4; r++) {
+        variableLine(src, dst, nu, n, m, r, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[r] === 1 ? heldAlong : null, heldValue);
+      }
+    }
+  }
+  for (; q < m; q++) variableLine(src, dst, nu, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[q] === 1 ? heldAlong : null, heldValue);
+}
+
+/**
+ * One line of a variable-coefficient half step. Line q of `src` (contiguous, n points,
+ * m lines) with ν per node in the same layout `nu`:
+ *   (I − β·A_along(ν)) y = s_q + e·A_across(ν) s  at every position k,
+ * faces taking the mean ν of their two nodes; the result goes transposed into `dst`.
+ * `held` marks positions held at `heldValue` (identity rows), or is null.
+ */
+function variableLine(src: Float64Array, dst: Float64Array, nu: Float64Array, n: number, m: number, q: number,
+                      gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
+                      beta: number, e: number, cp: Float64Array, held: Uint8Array | null, heldValue: number): void {
+  const base = q * n;
+  const before = q > 0 ? base - n : base;
+  const after = q < m - 1 ? base + n : base;
+  const wa = e * hPrev[q];
+  const wb = e * hNext[q];
+  let y = 0;
+  let cpPrev = 0;
+  let nuPrev = nu[base];
+  for (let k = 0; k < n; k++) {
+    const nk = nu[base + k];
+    const nNext = k < n - 1 ? nu[base + k + 1] : nk;
+    const sk = src[base + k];
+    let lo = -beta * gPrev[k] * 0.5 * (nuPrev + nk);
+    let up = -beta * gNext[k] * 0.5 * (nk + nNext);
+    let r = sk + wa * 0.5 * (nu[before + k] + nk) * (src[before + k] - sk) + wb * 0.5 * (nu[after + k] + nk) * (src[after + k] - sk);
+    if (held !== null && held[k] === 1) { lo = 0; up = 0; r = heldValue; }
+    const inv = 1 / (1 - lo - up - lo * cpPrev);
+    cpPrev = up * inv;
+    cp[k] = cpPrev;
+    y = (r - lo * y) * inv;
+    dst[k * m + q] = y;
+    nuPrev = nk;
+  }
+  for (let k = n - 2; k >= 0; k--) {
+    const o = k * m + q;
+    y = dst[o] - cp[k] * y;
+    dst[o] = y;
+  }
+}
+
+/**
+ * Four neighbouring lines of a variable-coefficient half step, their recurrences
+ * interleaved (the division of each Thomas step would otherwise stall the next). Same
+ * equations as `variableLine`; a held block is held at position 0 only.
+ */
+function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n: number, m: number, q: number,
+                       gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
+                       beta: number, e: number, cp: Float64Array, heldFirst: boolean, heldValue: number): void {
+  const b0 = q * n, b1 = b0 + n, b2 = b1 + n, b3 = b2 + n;
+  const bb = q > 0 ? b0 - n : b0;
+  const ba = q + 4 < m ? b3 + n : b3;
+  const half = 0.5 * e;
+  const wa0 = half * hPrev[q + 0], wb0 = half * hNext[q + 0];
+  const wa1 = half * hPrev[q + 1], wb1 = half * hNext[q + 1];
+  const wa2 = half * hPrev[q + 2], wb2 = half * hNext[q + 2];
+  const wa3 = half * hPrev[q + 3], wb3 = half * hNext[q + 3];
+  let y0 = 0, y1 = 0, y2 = 0, y3 = 0;
+  let p0 = 0, p1 = 0, p2 = 0, p3 = 0;
+  let v0 = nu[b0];
+  let v1 = nu[b1];
+  let v2 = nu[b2];
+  let v3 = nu[b3];
+  for (let k = 0; k < n; k++) {
+    const kn = k < n - 1 ? k + 1 : k;
+    const gp = 0.5 * beta * gPrev[k];
+    const gn = 0.5 * beta * gNext[k];
+    const sb = src[bb + k], sa = src[ba + k], nb = nu[bb + k], na = nu[ba + k];
+    const s0 = src[b0 + k], n0 = nu[b0 + k];
+    const s1 = src[b1 + k], n1 = nu[b1 + k];
+    const s2 = src[b2 + k], n2 = nu[b2 + k];
+    const s3 = src[b3 + k], n3 = nu[b3 + k];
+    let lo0 = -gp * (v0 + n0);
+    let up0 = -gn * (n0 + nu[b0 + kn]);
+    let r0 = s0 + wa0 * (nb + n0) * (sb - s0) + wb0 * (n1 + n0) * (s1 - s0);
+    v0 = n0;
+    let lo1 = -gp * (v1 + n1);
+    let up1 = -gn * (n1 + nu[b1 + kn]);
+    let r1 = s1 + wa1 * (n0 + n1) * (s0 - s1) + wb1 * (n2 + n1) * (s2 - s1);
+    v1 = n1;
+    let lo2 = -gp * (v2 + n2);
+    let up2 = -gn * (n2 + nu[b2 + kn]);
+    let r2 = s2 + wa2 * (n1 + n2) * (s1 - s2) + wb2 * (n3 + n2) * (s3 - s2);
+    v2 = n2;
+    let lo3 = -gp * (v3 + n3);
+    let up3 = -gn * (n3 + nu[b3 + kn]);
+    let r3 = s3 + wa3 * (n2 + n3) * (s2 - s3) + wb3 * (na + n3) * (sa - s3);
+    v3 = n3;
+    if (heldFirst && k === 0) {
+      lo0 = lo1 = lo2 = lo3 = 0;
+      up0 = up1 = up2 = up3 = 0;
+      r0 = r1 = r2 = r3 = heldValue;
+    }
+    const i0 = 1 / (1 - lo0 - up0 - lo0 * p0);
+    p0 = up0 * i0;
+    y0 = (r0 - lo0 * y0) * i0;
+    const i1 = 1 / (1 - lo1 - up1 - lo1 * p1);
+    p1 = up1 * i1;
+    y1 = (r1 - lo1 * y1) * i1;
+    const i2 = 1 / (1 - lo2 - up2 - lo2 * p2);
+    p2 = up2 * i2;
+    y2 = (r2 - lo2 * y2) * i2;
+    const i3 = 1 / (1 - lo3 - up3 - lo3 * p3);
+    p3 = up3 * i3;
+    y3 = (r3 - lo3 * y3) * i3;
+    const c = 4 * k;
+    cp[c] = p0; cp[c + 1] = p1; cp[c + 2] = p2; cp[c + 3] = p3;
+    const o = k * m + q;
+    dst[o] = y0; dst[o + 1] = y1; dst[o + 2] = y2; dst[o + 3] = y3;
+  }
+  for (let k = n - 2; k >= 0; k--) {
+    const c = 4 * k;
+    const o = k * m + q;
+    y0 = dst[o + 0] - cp[c + 0] * y0; dst[o + 0] = y0;
+    y1 = dst[o + 1] - cp[c + 1] * y1; dst[o + 1] = y1;
+    y2 = dst[o + 2] - cp[c + 2] * y2; dst[o + 2] = y2;
+    y3 = dst[o + 3] - cp[c + 3] * y3; dst[o + 3] = y3;
   }
 }

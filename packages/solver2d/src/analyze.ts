@@ -43,7 +43,8 @@ export interface Report extends ReportResults {
   /** dose that entered vs dose in the silicon, per species */
   ledger: Record<string, LedgerEntry>;
   thermalBudgetUm2: Record<string, number>;
-  steps: { index: number; kind: string; temperatureC: number | null; minutes: number; timeSteps: number }[];
+  /** per step: temperature (fixed or ramp [start, end]), duration, time steps, and ∫D dt per species, µm² */
+  steps: { index: number; kind: string; temperatureC: number | [number, number] | null; minutes: number; timeSteps: number; thermalBudgetUm2: Record<string, number> }[];
   /** the layers of field.npy, in order */
   field: { layers: string[]; shape: [number, number, number] };
   warnings: string[];
@@ -132,6 +133,7 @@ export function analyze(sim: Simulation): Analysis {
     thermalBudgetUm2: Object.fromEntries(Object.entries(plan.thermalBudgetUm2).map(([k, v]) => [k, rounded(v)])),
     steps: sim.stepRecords.map((r) => ({
       index: r.index, kind: r.kind, temperatureC: plan.steps[r.index].temperatureC,
+      thermalBudgetUm2: Object.fromEntries(Object.entries(plan.steps[r.index].budgetUm2).map(([k, v]) => [k, rounded(v)])),
       minutes: r.seconds / 60, timeSteps: r.timeSteps,
     })),
     field: { layers: field.names, shape: [field.names.length, mesh.nz, mesh.nx] },

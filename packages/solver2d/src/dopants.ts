@@ -1,3 +1,4 @@
+import { electronsOverNi, fieldEnhancement, intrinsicCarriersCm3 } from './intrinsic.ts';
 import { diffusivityToSolver, thermalEnergyEv } from './units.ts';
 
 export type DopantType = 'donor' | 'acceptor';
@@ -68,4 +69,35 @@ export function intrinsicDiffusivityCm2PerS(dopant: Dopant, temperatureC: number
 /** Intrinsic diffusivity in solver units, µm^2/s. */
 export function intrinsicDiffusivity(dopant: Dopant, temperatureC: number): number {
   return diffusivityToSolver(intrinsicDiffusivityCm2PerS(dopant, temperatureC));
+}
+
+/** The charge-state terms at a temperature, µm²/s (absent terms are 0). */
+export interface ComponentDiffusivities {
+  neutral: number;
+  single: number;
+  double: number;
+}
+
+export function componentsAt(dopant: Dopant, temperatureC: number): ComponentDiffusivities {
+  const { neutral, single, double } = dopant.components;
+  return {
+    neutral: diffusivityToSolver(arrheniusCm2PerS(neutral, temperatureC)),
+    single: single ? diffusivityToSolver(arrheniusCm2PerS(single, temperatureC)) : 0,
+    double: double ? diffusivityToSolver(arrheniusCm2PerS(double, temperatureC)) : 0,
+  };
+}
+
+/**
+ * Charged-defect diffusivity, µm²/s: D⁰ + D⁻(n/ni) + D⁼(n/ni)² for a donor, D⁰ + D⁺(p/ni)
+ * for an acceptor (Fair 1981, via Plummer, Deal & Griffin 2000 ch. 7), with n and p from
+ * neutrality at net doping `netCm3` and, when `field` is set and the dopant's type carries
+ * the net doping, the built-in-field factor h = 1 + |N|/√(N² + 4ni²).
+ */
+export function diffusivityAt(dopant: Dopant, temperatureC: number, netCm3: number, field: boolean): number {
+  const ni = intrinsicCarriersCm3(temperatureC);
+  const d = componentsAt(dopant, temperatureC);
+  const r = electronsOverNi(netCm3, ni);
+  const charged = dopant.type === 'donor' ? d.single * r + d.double * r * r : d.single / r;
+  const majority = dopant.type === 'donor' ? netCm3 > 0 : netCm3 < 0;
+  return (d.neutral + charged) * (field && majority ? fieldEnhancement(netCm3, ni) : 1);
 }

@@ -36,6 +36,8 @@ export interface SpacingRule {
   /** optional finer spacing right at a feature, growing by `grade` until it meets `fineUm`:
    *  resolves a short early step (a brief predeposition) inside a long recipe */
   nearUm?: number;
+  /** distance from a feature over which `nearUm` holds before it grows, µm */
+  nearReachUm?: number;
 }
 
 /** Samples per interval for the spacing integral; the placement error is far below a cell. */
@@ -44,7 +46,8 @@ const SAMPLES = 2048;
 function spacingAt(distance: number, rule: SpacingRule): number {
   const beyond = Math.max(0, distance - rule.fineReachUm);
   const s = Math.min(rule.maxUm, rule.fineUm + rule.grade * beyond);
-  return rule.nearUm === undefined ? s : Math.min(s, rule.nearUm + rule.grade * distance);
+  if (rule.nearUm === undefined) return s;
+  return Math.min(s, rule.nearUm + rule.grade * Math.max(0, distance - (rule.nearReachUm ?? 0)));
 }
 
 /**

@@ -1,28 +1,43 @@
 import erfcinv from '@stdlib/math-base-special-erfcinv';
-import { BUILTIN_DOPANTS, intrinsicDiffusivity, type Dopant, type DopantType } from './dopants.ts';
+import { BUILTIN_DOPANTS, diffusivityAt, intrinsicDiffusivity, type Dopant, type DopantType } from './dopants.ts';
+import type { ImplantSpec } from './implant.ts';
 import { buildMask, maskEdges, type Mask, type Window } from './mask.ts';
 import { buildMesh, gradedAxis, type Mesh, type SpacingRule } from './mesh.ts';
-import { RecipeError, type Recipe, type Step } from './recipe.ts';
+import { DIFFUSION_MODELS, RecipeError, type Recipe, type Step } from './recipe.ts';
+import { interpolateSolubility, solidSolubilityCm3 } from './solubility.ts';
 import { concentrationFromDose, minutesToSeconds } from './units.ts';
 
 /** One step of the schedule, in solver units. */
 export interface StepPlan {
   index: number;
   kind: Step['kind'];
-  temperatureC: number | null;
+  /** as given: fixed, a ramp [start, end], or null for a step with no heat */
+  temperatureC: number | [number, number] | null;
+  startC: number | null;
+  endC: number | null;
   seconds: number;
   /** the species this step introduces, if any */
   dopant: string | null;
+  /** held surface value of a predeposition at a fixed temperature, cm^-3 */
   surfaceConcentrationCm3: number | null;
+  /** true when the held value follows the solid solubility at the step's temperature */
+  surfaceAtSolubility: boolean;
   doseCm2: number | null;
-  /** diffusivity of every species during this step, µm²/s (0 for a step with no time) */
-  diffusivity: Record<string, number>;
+  implant: ImplantSpec | null;
+  /** ∫D dt of every species present during this step (intrinsic D), µm² */
+  budgetUm2: Record<string, number>;
 }
+
+export type DiffusionModel = (typeof DIFFUSION_MODELS)[number];
 
 export interface SpeciesPlan {
   name: string;
   type: DopantType;
   dopant: Dopant;
+  model: DiffusionModel;
+  fieldEnhancement: boolean;
+  /** solid solubility, cm^-3, at a temperature (°C), or a reason it cannot be given */
+  solubility: (temperatureC: number) => number | string;
 }
 
 export interface Numerics {
@@ -38,11 +53,47 @@ export interface Plan {
   mesh: Mesh;
   mask: Mask;
   numerics: Numerics;
-  /** ∫D dt per species over the whole recipe, µm² */
+  /** ∫D dt per species over the whole recipe (intrinsic D), µm² */
   thermalBudgetUm2: Record<string, number>;
   /** the 1D junction-depth estimate the mesh was sized from, µm */
   reachUm: number;
   warnings: string[];
+}
+
+/** Temperature at a time within a step (linear ramp), °C. */
+export function temperatureAt(step: StepPlan, seconds: number): number {
+  if (step.startC === null || step.endC === null) throw new Error(`steps[${step.index}] has no temperature`);
+  return step.seconds > 0 ? step.startC + ((step.endC - step.startC) * seconds) / step.seconds : step.startC;
+}
+
+const GAUSS5 = [
+  [0, 128 / 225],
+  [-Math.sqrt(5 - 2 * Math.sqrt(10 / 7)) / 3, (322 + 13 * Math.sqrt(70)) / 900],
+  [Math.sqrt(5 - 2 * Math.sqrt(10 / 7)) / 3, (322 + 13 * Math.sqrt(70)) / 900],
+  [-Math.sqrt(5 + 2 * Math.sqrt(10 / 7)) / 3, (322 - 13 * Math.sqrt(70)) / 900],
+  [Math.sqrt(5 + 2 * Math.sqrt(10 / 7)) / 3, (322 - 13 * Math.sqrt(70)) / 900],
+] as const;
+
+/** ∫ f over [a, b] by five-point Gauss–Legendre on `pieces` equal parts. */
+export function integrate(f: (t: number) => number, a: number, b: number, pieces = 1): number {
+  const h = (b - a) / pieces;
+  let total = 0;
+  for (let p = 0; p < pieces; p++) {
+    const mid = a + (p + 0.5) * h;
+    for (const [x, w] of GAUSS5) total += w * f(mid + 0.5 * h * x);
+  }
+  return 0.5 * h * total;
+}
+
+/** Pieces for budget quadrature: D changes by e-fold per ~10 °C, so a ramp gets many. */
+function budgetPieces(step: StepPlan): number {
+  return step.startC === step.endC ? 1 : 64;
+}
+
+/** ∫ f(T(t)) dt over the step, for any function of temperature. */
+export function overStep(step: StepPlan, f: (temperatureC: number) => number, t0 = 0, t1 = step.seconds): number {
+  if (step.startC === null || !(t1 > t0)) return 0;
+  return integrate((t) => f(temperatureAt(step, t)), t0, t1, budgetPieces(step));
 }
 
 export interface PlanLimits {
@@ -78,7 +129,11 @@ function resolveDopant(recipe: Recipe, name: string, field: string): Dopant {
   if (user) {
     return {
       name, type: user.type, source: 'user-defined in the recipe',
-      components: { neutral: { D0Cm2PerS: user.D0Cm2PerS, EaEv: user.EaEv } },
+      components: {
+        neutral: { D0Cm2PerS: user.D0Cm2PerS, EaEv: user.EaEv },
+        ...(user.singlyCharged ? { single: user.singlyCharged } : {}),
+        ...(user.doublyCharged ? { double: user.doublyCharged } : {}),
+      },
     };
   }
   const builtin = BUILTIN_DOPANTS[name];
@@ -87,6 +142,13 @@ function resolveDopant(recipe: Recipe, name: string, field: string): Dopant {
     throw new RecipeError(field, `unknown dopant ${JSON.stringify(name)} (known: ${known}; add others under "dopants")`);
   }
   return builtin;
+}
+
+function solubilityOf(recipe: Recipe, name: string): (temperatureC: number) => number | string {
+  const table = recipe.dopants?.[name]?.solubilityCm3;
+  if (!table) return (t) => solidSolubilityCm3(name, t);
+  const sorted = [...table].sort((a, b) => a[0] - b[0]);
+  return (t) => interpolateSolubility(sorted, t);
 }
 
 function checkWindows(windows: readonly Window[], widthUm: number): void {
@@ -105,14 +167,19 @@ function checkWindows(windows: readonly Window[], widthUm: number): void {
 }
 
 function stepSeconds(step: Step): number {
+  if (step.kind === 'implant') return 0;
   if (step.kind === 'film') return step.minutes ? minutesToSeconds(step.minutes) : 0;
   return minutesToSeconds(step.minutes);
 }
 
-function stepTemperature(step: Step, index: number): number | null {
+function stepTemperature(step: Step, index: number): number | [number, number] | null {
+  if (step.kind === 'implant') return null;
   if (step.kind === 'film') {
     if (step.minutes !== undefined && step.temperatureC === undefined) {
-      throw new RecipeError(`steps[${index}].temperatureC`, 'is required when a film step has minutes: a number from 600 to 1400 °C');
+      throw new RecipeError(`steps[${index}].temperatureC`, 'is required when a film step has minutes: a number from 600 to 1400 °C or a ramp [start, end]');
+    }
+    if (step.minutes === undefined && step.temperatureC !== undefined) {
+      throw new RecipeError(`steps[${index}].minutes`, 'is required when a film step has a temperature: a number above 0 and up to 1e5 minutes');
     }
     return step.temperatureC ?? null;
   }
@@ -120,7 +187,10 @@ function stepTemperature(step: Step, index: number): number | null {
 }
 
 function scaledRule(rule: SpacingRule, scale: number): SpacingRule {
-  return { ...rule, fineUm: rule.fineUm * scale, maxUm: Math.max(rule.maxUm * scale, rule.fineUm * scale) };
+  return {
+    ...rule, fineUm: rule.fineUm * scale, maxUm: Math.max(rule.maxUm * scale, rule.fineUm * scale),
+    ...(rule.nearUm !== undefined ? { nearUm: rule.nearUm * scale } : {}),
+  };
 }
 
 /** Scales a rule so that the axis gets about `count` cells (bisection on a log scale). */
@@ -135,87 +205,152 @@ function ruleForCount(count: number, cellsOf: (rule: SpacingRule) => number, rul
   return scaledRule(rule, Math.exp(hi));
 }
 
+/** Finer spacing near a feature for a detail that is smaller than the final profile. */
+interface NearDetail {
+  spacingUm: number;
+  reachUm: number;
+}
+
+function finest(details: NearDetail[]): NearDetail | null {
+  if (details.length === 0) return null;
+  const spacingUm = Math.min(...details.map((d) => d.spacingUm));
+  return { spacingUm, reachUm: Math.max(...details.filter((d) => d.spacingUm <= 1.5 * spacingUm).map((d) => d.reachUm)) };
+}
+
 export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS): Plan {
   const widthUm = recipe.crossSection.widthUm;
   const windows = recipe.mask.windows as Window[];
   checkWindows(windows, widthUm);
   const substrateDopant = resolveDopant(recipe, recipe.substrate.dopant, 'substrate.dopant');
   const warnings: string[] = [];
+  const background = recipe.substrate.concentrationCm3;
 
   const species: SpeciesPlan[] = [];
   const firstStep: Record<string, number> = {};
+  const models = recipe.diffusion?.species ?? {};
   recipe.steps.forEach((step, k) => {
-    if (step.kind !== 'predeposition' && step.kind !== 'film') return;
+    if (step.kind !== 'predeposition' && step.kind !== 'film' && step.kind !== 'implant') return;
     const dopant = resolveDopant(recipe, step.dopant, `steps[${k}].dopant`);
-    if (!(step.dopant in firstStep)) {
-      firstStep[step.dopant] = k;
-      species.push({ name: step.dopant, type: dopant.type, dopant });
-    }
+    if (step.dopant in firstStep) return;
+    firstStep[step.dopant] = k;
+    const charged = dopant.components.single !== undefined || dopant.components.double !== undefined;
+    species.push({
+      name: step.dopant, type: dopant.type, dopant,
+      model: models[step.dopant] ?? recipe.diffusion?.model ?? (charged ? 'charged-defect' : 'intrinsic'),
+      fieldEnhancement: recipe.diffusion?.fieldEnhancement ?? true,
+      solubility: solubilityOf(recipe, step.dopant),
+    });
   });
-  if (species.length === 0) throw new RecipeError('steps', 'introduce no dopant: add a predeposition or film step');
+  if (species.length === 0) throw new RecipeError('steps', 'introduce no dopant: add a predeposition, film or implant step');
+  for (const name of Object.keys(models)) {
+    if (!(name in firstStep)) throw new RecipeError(`diffusion.species.${name}`, `names a dopant no step introduces (introduced: ${Object.keys(firstStep).join(', ')})`);
+  }
 
   const steps: StepPlan[] = recipe.steps.map((step, k) => {
     const temperatureC = stepTemperature(step, k);
-    const seconds = stepSeconds(step);
-    const diffusivity: Record<string, number> = {};
-    for (const s of species) diffusivity[s.name] = temperatureC === null ? 0 : intrinsicDiffusivity(s.dopant, temperatureC);
+    const startC = temperatureC === null ? null : typeof temperatureC === 'number' ? temperatureC : temperatureC[0];
+    const endC = temperatureC === null ? null : typeof temperatureC === 'number' ? temperatureC : temperatureC[1];
+    let surface: number | null = null;
+    let atSolubility = false;
+    if (step.kind === 'predeposition') {
+      if (step.surfaceConcentrationCm3 === 'solubility') {
+        atSolubility = true;
+        const sp = species.find((s) => s.name === step.dopant)!;
+        for (const t of [startC!, endC!]) {
+          const v = sp.solubility(t);
+          if (typeof v === 'string') throw new RecipeError(`steps[${k}].surfaceConcentrationCm3`, v);
+        }
+      } else surface = step.surfaceConcentrationCm3;
+    }
     return {
-      index: k, kind: step.kind, temperatureC, seconds,
-      dopant: step.kind === 'predeposition' || step.kind === 'film' ? step.dopant : null,
-      surfaceConcentrationCm3: step.kind === 'predeposition' ? step.surfaceConcentrationCm3 : null,
-      doseCm2: step.kind === 'film' ? step.doseCm2 : null,
-      diffusivity,
+      index: k, kind: step.kind, temperatureC, startC, endC, seconds: stepSeconds(step),
+      dopant: step.kind === 'predeposition' || step.kind === 'film' || step.kind === 'implant' ? step.dopant : null,
+      surfaceConcentrationCm3: surface,
+      surfaceAtSolubility: atSolubility,
+      doseCm2: step.kind === 'film' || step.kind === 'implant' ? step.doseCm2 : null,
+      implant: step.kind === 'implant'
+        ? { doseCm2: step.doseCm2, projectedRangeUm: step.projectedRangeUm, straggleUm: step.straggleUm, lateralStraggleUm: step.lateralStraggleUm ?? step.straggleUm }
+        : null,
+      budgetUm2: {},
     };
   });
-
-  const thermalBudgetUm2: Record<string, number> = {};
-  for (const s of species) {
-    let budget = 0;
-    for (const st of steps) if (st.index >= firstStep[s.name]) budget += st.diffusivity[s.name] * st.seconds;
-    thermalBudgetUm2[s.name] = budget;
-  }
-  const maxBudget = Math.max(...Object.values(thermalBudgetUm2));
-  if (!(maxBudget > 0)) throw new RecipeError('steps', 'have no time at temperature after the dopant is introduced: add a drive-in');
-  const diffusionLength = Math.sqrt(maxBudget);
-
-  // The highest concentration the recipe reaches, to size the mesh from its 1D junction depth.
-  const background = recipe.substrate.concentrationCm3;
-  let peak = 0;
   for (const st of steps) {
-    if (st.surfaceConcentrationCm3 !== null) peak = Math.max(peak, st.surfaceConcentrationCm3);
-    if (st.doseCm2 !== null && st.dopant) {
-      const spread = Math.sqrt(Math.PI * Math.max(thermalBudgetUm2[st.dopant], 1e-12));
-      peak = Math.max(peak, concentrationFromDose(st.doseCm2, spread));
+    for (const s of species) {
+      if (st.index < firstStep[s.name]) continue;
+      st.budgetUm2[s.name] = overStep(st, (t) => intrinsicDiffusivity(s.dopant, t));
     }
   }
-  const ratio = background / Math.max(peak, 1);
-  const reachUm = 2 * diffusionLength * (ratio < 0.5 ? erfcinv(ratio) : erfcinv(0.5));
-  const autoDepth = Math.max(2 * diffusionLength * erfcinv(Math.min(0.1, BOTTOM_FRACTION * ratio)), 1.25 * reachUm);
+
+  const thermalBudgetUm2: Record<string, number> = {};
+  for (const s of species) thermalBudgetUm2[s.name] = steps.reduce((sum, st) => sum + (st.budgetUm2[s.name] ?? 0), 0);
+
+  // Size the mesh from the deepest 1D profile any source makes. Concentration-dependent
+  // diffusion is sized with D at the source's peak concentration, where it is fastest;
+  // such a profile is box-like with its front near 1.6·√(Ds·t) (Fair 1981).
+  const near: NearDetail[] = [];
+  const nearX: NearDetail[] = [];
+  let reachUm = 0;
+  let depthNeed = 0;
+  for (const st of steps) {
+    if (!st.dopant) continue;
+    const sp = species.find((s) => s.name === st.dopant)!;
+    const budget = Math.max(thermalBudgetUm2[sp.name] - sumBefore(steps, st.index, sp.name), 0);
+    let peak: number;
+    let reach: number;
+    if (st.kind === 'implant' && st.implant) {
+      const { projectedRangeUm: rp, straggleUm: dr, lateralStraggleUm: dl, doseCm2 } = st.implant;
+      const sigma = Math.sqrt(dr * dr + 2 * budget);
+      peak = concentrationFromDose(doseCm2, Math.sqrt(2 * Math.PI) * sigma);
+      reach = rp + sigma * Math.sqrt(2 * Math.log(Math.max(peak / background, 2)));
+      near.push({ spacingUm: dr / 8, reachUm: rp + 4 * dr });
+      nearX.push({ spacingUm: dl / 8, reachUm: 4 * dl });
+      depthNeed = Math.max(depthNeed, rp + sigma * Math.sqrt(2 * Math.log(Math.max(peak / (BOTTOM_FRACTION * background), 2))));
+    } else {
+      peak = st.kind === 'film'
+        ? concentrationFromDose(st.doseCm2!, Math.sqrt(Math.PI * Math.max(budget, 1e-12)))
+        : st.surfaceConcentrationCm3 ?? Math.max(...[st.startC!, st.endC!].map((t) => sp.solubility(t) as number));
+      const ratio = background / Math.max(peak, 1);
+      const length = Math.sqrt(budget);
+      reach = 2 * length * erfcinv(Math.min(ratio, 0.5));
+      depthNeed = Math.max(depthNeed, 2 * length * erfcinv(Math.min(0.1, BOTTOM_FRACTION * ratio)));
+      if (st.kind === 'predeposition' && st.seconds > 0) {
+        const own = Math.sqrt(sp.model === 'charged-defect'
+          ? overStep(st, (t) => diffusivityAt(sp.dopant, t, sp.type === 'donor' ? peak : -peak, sp.fieldEnhancement))
+          : st.budgetUm2[sp.name]);
+        near.push({ spacingUm: own / CELLS_PER_SOURCE_LENGTH, reachUm: 2 * own });
+        nearX.push({ spacingUm: own / CELLS_PER_SOURCE_LENGTH, reachUm: 2 * own });
+      }
+    }
+    if (sp.model === 'charged-defect') {
+      const fastBudget = fastestBudget(sp, steps, st.index, peak, sp.fieldEnhancement);
+      reach = Math.max(reach, 1.6 * Math.sqrt(fastBudget));
+    }
+    reachUm = Math.max(reachUm, reach);
+  }
+  if (!(reachUm > 0)) throw new RecipeError('steps', 'have no time at temperature after the dopant is introduced: add a drive-in');
+  const autoDepth = Math.max(depthNeed, 1.25 * reachUm);
   const depthUm = recipe.crossSection.depthUm ?? autoDepth;
   if (recipe.crossSection.depthUm !== undefined && recipe.crossSection.depthUm < autoDepth) {
     warnings.push(`crossSection.depthUm ${recipe.crossSection.depthUm} µm is shallower than the ${autoDepth.toPrecision(3)} µm the profile needs; the bottom wall may change the answer`);
   }
 
-  // The shortest diffusion length of a source step: a brief predeposition before a long
-  // drive-in sets the dose in a layer much thinner than the final profile.
-  let shortest = Infinity;
-  for (const st of steps) {
-    if (st.kind === 'predeposition' && st.dopant) shortest = Math.min(shortest, Math.sqrt(st.diffusivity[st.dopant] * st.seconds));
-  }
   const m = recipe.mesh ?? {};
   const refine = m.refine ?? 1;
   const fineX = m.edgeSpacingUm ?? reachUm / CELLS_PER_REACH_X / refine;
   const fineZ = m.surfaceSpacingUm ?? reachUm / CELLS_PER_REACH_Z / refine;
-  const near = shortest / CELLS_PER_SOURCE_LENGTH / refine;
+  const detailZ = finest(near);
+  const detailX = finest(nearX);
+  const nearRule = (detail: NearDetail | null, fine: number, given: number | undefined) =>
+    detail && given === undefined && detail.spacingUm / refine < fine ? { nearUm: detail.spacingUm / refine, nearReachUm: detail.reachUm } : {};
   let xRule: SpacingRule = {
     fineUm: fineX, fineReachUm: FINE_REACH * reachUm, grade: GRADE,
     maxUm: m.maxSpacingUm ?? Math.max(fineX, reachUm / 2 / refine),
-    ...(near < fineX && m.edgeSpacingUm === undefined ? { nearUm: near } : {}),
+    ...nearRule(detailX, fineX, m.edgeSpacingUm),
   };
   let zRule: SpacingRule = {
     fineUm: fineZ, fineReachUm: FINE_REACH * reachUm, grade: GRADE,
     maxUm: m.maxSpacingUm ?? Math.max(fineZ, reachUm / 4 / refine),
-    ...(near < fineZ && m.surfaceSpacingUm === undefined ? { nearUm: near } : {}),
+    ...nearRule(detailZ, fineZ, m.surfaceSpacingUm),
   };
   const edges = maskEdges(windows, widthUm);
   const fixed = windows.flat();
@@ -225,13 +360,13 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
   if (m.rows !== undefined) zRule = ruleForCount(m.rows - 1, (r) => zAxis(r).length - 1, zRule);
 
   // Count before building, so an oversized request fails before any large allocation.
-  const xFaces = xAxis(xRule);
-  const zNodes = zAxis(zRule);
-  const points = (xFaces.length - 1) * zNodes.length;
+  const xCells = countCells(widthUm, fixed, edges, xRule);
+  const zCells = countCells(depthUm, [], [0], zRule) + 1;
+  const points = xCells * zCells;
   if (points > limits.maxMeshPoints) {
-    throw new RecipeError('mesh', `would need ${points} mesh points (${xFaces.length - 1} × ${zNodes.length}, about ${Math.ceil((points * 8 * 6) / 2 ** 20)} MiB), above the limit of ${limits.maxMeshPoints}; lower mesh.refine or raise the limit`);
+    throw new RecipeError('mesh', `would need ${points} mesh points (${xCells} × ${zCells}, about ${Math.ceil((points * 8 * 8) / 2 ** 20)} MiB), above the limit of ${limits.maxMeshPoints}; lower mesh.refine or raise the limit`);
   }
-  const mesh = buildMesh(xFaces, zNodes);
+  const mesh = buildMesh(xAxis(xRule), zAxis(zRule));
   const mask = buildMask(mesh, windows);
 
   for (const [x0, x1] of windows) {
@@ -248,4 +383,39 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
     numerics: { stepGrowth: recipe.numerics?.stepGrowth ?? DEFAULT_STEP_GROWTH, startupSteps: recipe.numerics?.startupSteps ?? 3 },
     thermalBudgetUm2, reachUm, warnings,
   };
+}
+
+function sumBefore(steps: StepPlan[], index: number, name: string): number {
+  let sum = 0;
+  for (const st of steps) if (st.index < index) sum += st.budgetUm2[name] ?? 0;
+  return sum;
+}
+
+/**
+ * ∫D dt from a source step on with the charged-defect D at the profile's peak: the source
+ * value during the source step, then the surface value of the redistributed dose,
+ * Q/√(π·∫D dt), as a drive-in lowers it (an estimate for sizing the mesh, not a result).
+ */
+function fastestBudget(sp: SpeciesPlan, steps: StepPlan[], from: number, peak: number, field: boolean): number {
+  const signed = (c: number) => (sp.type === 'donor' ? c : -c);
+  const source = steps[from];
+  let budget = 0;
+  let dose = source.doseCm2 !== null ? concentrationFromDose(source.doseCm2, 1) : 0;
+  for (const st of steps) {
+    if (st.index < from) continue;
+    if (st.index === from && st.kind === 'predeposition') {
+      const own = overStep(st, (t) => diffusivityAt(sp.dopant, t, signed(peak), field));
+      dose = 2 * peak * Math.sqrt(own / Math.PI);
+      budget += own;
+      continue;
+    }
+    const surface = budget > 0 ? Math.min(peak, dose / Math.sqrt(Math.PI * budget)) : peak;
+    budget += overStep(st, (t) => diffusivityAt(sp.dopant, t, signed(surface), field));
+  }
+  return budget;
+}
+
+/** Cells an axis would get, without building it. */
+function countCells(length: number, fixed: readonly number[], features: readonly number[], rule: SpacingRule): number {
+  return gradedAxis(length, fixed, features, rule).length - 1;
 }

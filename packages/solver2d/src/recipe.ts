@@ -74,6 +74,11 @@ const temperatureC = num('°C (the diffusivity tables cover this range)', TEMPER
 const minutes = num('minutes', 0, MAX_MINUTES, true);
 const coordinate = num('µm', 0, 1e4);
 
+/** A fixed temperature, or a ramp [start, end] linear in time over the step. */
+const temperatureOrRamp = z.union([temperatureC, z.tuple([temperatureC, temperatureC])], {
+  error: explain('a temperature in °C from 600 to 1400, or a ramp [start, end] of two'),
+});
+
 const windowPair = z.tuple([coordinate, coordinate], {
   error: explain('a window [x0, x1] of two numbers in µm'),
 });
@@ -81,24 +86,37 @@ const windowPair = z.tuple([coordinate, coordinate], {
 const predeposition = strict({
   kind: z.literal('predeposition'),
   dopant: dopantName,
-  surfaceConcentrationCm3: concentration,
-  temperatureC,
+  surfaceConcentrationCm3: z.union([concentration, z.literal('solubility')], {
+    error: explain('a number from 1e10 to 1e22 cm^-3, or "solubility"'),
+  }),
+  temperatureC: temperatureOrRamp,
   minutes,
 });
+
+const dose = num('cm^-2', 0, 1e18, true);
 
 const film = strict({
   kind: z.literal('film'),
   dopant: dopantName,
-  doseCm2: num('cm^-2', 0, 1e18, true),
-  temperatureC: temperatureC.optional(),
+  doseCm2: dose,
+  temperatureC: temperatureOrRamp.optional(),
   minutes: minutes.optional(),
 });
 
-const heat = (kind: 'drive-in' | 'anneal') => strict({ kind: z.literal(kind), temperatureC, minutes });
+const implant = strict({
+  kind: z.literal('implant'),
+  dopant: dopantName,
+  doseCm2: dose,
+  projectedRangeUm: num('µm', 0, 20),
+  straggleUm: num('µm', 0, 10, true),
+  lateralStraggleUm: num('µm', 0, 10, true).optional(),
+});
 
-export const STEP_KINDS = ['predeposition', 'film', 'drive-in', 'anneal'] as const;
+const heat = (kind: 'drive-in' | 'anneal') => strict({ kind: z.literal(kind), temperatureC: temperatureOrRamp, minutes });
 
-const step = z.discriminatedUnion('kind', [predeposition, film, heat('drive-in'), heat('anneal')], {
+export const STEP_KINDS = ['predeposition', 'film', 'implant', 'drive-in', 'anneal'] as const;
+
+const step = z.discriminatedUnion('kind', [predeposition, film, implant, heat('drive-in'), heat('anneal')], {
   error: (iss) => {
     const input = iss.input as { kind?: unknown } | undefined;
     if (input === null || typeof input !== 'object' || Array.isArray(input)) return `must be a step object with a "kind" (got ${describeValue(input)})`;
@@ -106,10 +124,31 @@ const step = z.discriminatedUnion('kind', [predeposition, film, heat('drive-in')
   },
 });
 
+const arrhenius = strict({ D0Cm2PerS: num('cm^2/s', 0, 1e6, true), EaEv: num('eV', 0, 10, true) });
+
+/** A species of the recipe's own: the neutral term, optional charged-defect terms and solubility. */
 const userDopant = strict({
   type: z.enum(['donor', 'acceptor'], { error: explain('"donor" or "acceptor"') }),
   D0Cm2PerS: num('cm^2/s', 0, 1e6, true),
   EaEv: num('eV', 0, 10, true),
+  singlyCharged: arrhenius.optional(),
+  doublyCharged: arrhenius.optional(),
+  solubilityCm3: z.array(z.tuple([temperatureC, concentration]), { error: explain('a list of [temperature °C, concentration cm^-3] pairs') })
+    .min(2, { error: 'must list at least two [temperature °C, concentration cm^-3] pairs' }).optional(),
+});
+
+export const DIFFUSION_MODELS = ['intrinsic', 'charged-defect'] as const;
+const model = z.enum(DIFFUSION_MODELS, { error: explain(`one of ${DIFFUSION_MODELS.join(', ')}`) });
+
+/**
+ * How diffusivity depends on the doping: `intrinsic` (D at n = ni, concentration-independent)
+ * or `charged-defect` (each charge-state term weighted by (n/ni)^k or (p/ni), with the
+ * built-in-field enhancement for the dominant species). Per species overrides the default.
+ */
+const diffusion = strict({
+  model: model.optional(),
+  species: z.record(z.string(), model, { error: explain('an object of dopant name → model') }).optional(),
+  fieldEnhancement: z.boolean({ error: explain('true or false') }).optional(),
 });
 
 const meshOptions = strict({
@@ -146,6 +185,7 @@ export const recipeSchema = strict({
       .min(1, { error: 'must list at least one window [x0, x1] in µm' })
       .max(256, { error: 'must list at most 256 windows' }),
   }),
+  diffusion: diffusion.optional(),
   dopants: z.record(dopantName, userDopant, { error: explain('an object of dopant name → { type, D0Cm2PerS, EaEv }') }).optional(),
   mesh: meshOptions.optional(),
   numerics: numerics.optional(),

@@ -69,7 +69,8 @@ export const reportSchema = z.strictObject({
   ledger: z.record(z.string(), ledgerEntry),
   thermalBudgetUm2: counts,
   steps: z.array(z.strictObject({
-    index: z.number().int(), kind: z.string(), temperatureC: z.number().nullable(), minutes: z.number(), timeSteps: z.number().int(),
+    index: z.number().int(), kind: z.string(), temperatureC: z.union([z.number(), z.tuple([z.number(), z.number()])]).nullable(), minutes: z.number(), timeSteps: z.number().int(),
+    thermalBudgetUm2: counts,
   })),
   field: z.strictObject({ layers: z.array(z.string()), shape: z.tuple([z.number().int(), z.number().int(), z.number().int()]) }),
   warnings: z.array(z.string()),

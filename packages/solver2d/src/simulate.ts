@@ -1,5 +1,8 @@
 import { AdiStepper } from './adi.ts';
-import type { Plan } from './plan.ts';
+import { componentsAt, diffusivityAt, intrinsicDiffusivity, type ComponentDiffusivities } from './dopants.ts';
+import { addImplant } from './implant.ts';
+import { intrinsicCarriersCm3 } from './intrinsic.ts';
+import { integrate, overStep, temperatureAt, type Plan, type SpeciesPlan, type StepPlan } from './plan.ts';
 import { geometricSteps } from './schedule.ts';
 import { concentrationFromDose, doseFromConcentrationUm } from './units.ts';
 
@@ -58,38 +61,96 @@ export class StoppedError extends Error {
 }
 
 /**
- * First step of each timed process step: ν₀ = D·Δt₀ equal to a quarter of the finest cell
- * squared, so the modes a discontinuity excites are resolved in time before the steps grow.
+ * First step of each step that starts a source: ν₀ = D·Δt₀ equal to a quarter of the finest
+ * cell squared, so the modes a discontinuity excites are resolved in time before the steps grow.
  */
 const FIRST_STEP_MESH_NUMBER = 0.25;
 
-/**
- * Time steps for every process step. A step that starts a source (a predeposition, a
- * film) begins from a discontinuity and starts at the mesh's own time scale. A drive-in
- * continues a profile that already has an age t₀ = (∫D dt so far)/D: the geometric
- * sequence then starts at (growth − 1)·t₀, keeping Δt/t as it would be had the profile
- * grown at this temperature from the start (the youngest species present decides).
- */
-function timeSchedules(plan: Plan, hFine: number): Float64Array[] {
-  const { steps, species, numerics } = plan;
-  const budget: Record<string, number> = {};
-  const introduced = new Set<string>();
-  return steps.map((st) => {
-    if (st.dopant) introduced.add(st.dopant);
-    const active = species.filter((s) => introduced.has(s.name));
-    const dMax = Math.max(0, ...active.map((s) => st.diffusivity[s.name]));
-    if (!(st.seconds > 0) || dMax === 0) return new Float64Array(0);
-    let first = (FIRST_STEP_MESH_NUMBER * hFine * hFine) / dMax;
-    if (st.kind === 'drive-in' || st.kind === 'anneal') {
-      const age = Math.min(...active.map((s) => (budget[s.name] ?? 0) / st.diffusivity[s.name]));
-      if (Number.isFinite(age)) first = Math.max(first, (numerics.stepGrowth - 1) * age);
-    }
-    for (const s of active) budget[s.name] = (budget[s.name] ?? 0) + st.diffusivity[s.name] * st.seconds;
-    return geometricSteps(st.seconds, first, numerics.stepGrowth);
-  });
+/** One time step: its interval within the process step and the temperature at its middle. */
+interface TimeStep {
+  t0: number;
+  t1: number;
 }
 
-/** Runs the recipe's steps in order; each species diffuses with its own D during every timed step. */
+/**
+ * Time steps for one process step, geometric in the thermal budget of its fastest species
+ * (for a ramp, D changes by orders of magnitude; in budget the profile grows as it would
+ * at a fixed temperature). A step that starts a source begins at the mesh's own scale; a
+ * drive-in continues a profile whose age in budget is what came before, and its sequence
+ * starts at (growth − 1)·age, keeping Δβ/β as if the profile had grown here from the start.
+ */
+function stepSchedule(plan: Plan, st: StepPlan, hFine: number, present: readonly SpeciesPlan[],
+                      budgetBefore: Record<string, number>, speedup: number): TimeStep[] {
+  if (!(st.seconds > 0) || present.length === 0) return [];
+  const reference = present.reduce((a, b) => ((st.budgetUm2[b.name] ?? 0) > (st.budgetUm2[a.name] ?? 0) ? b : a));
+  const total = st.budgetUm2[reference.name] ?? 0;
+  if (!(total > 0)) return [{ t0: 0, t1: st.seconds }];
+  let first = (FIRST_STEP_MESH_NUMBER * hFine * hFine) / speedup;
+  if (st.kind === 'drive-in' || st.kind === 'anneal') {
+    const ages = present.map((s) => ((budgetBefore[s.name] ?? 0) * total) / Math.max(st.budgetUm2[s.name] ?? 0, 1e-300));
+    first = Math.max(first, (plan.numerics.stepGrowth - 1) * Math.min(...ages));
+  }
+  const increments = geometricSteps(total, first, plan.numerics.stepGrowth);
+  // Budget → time: cumulative budget of the reference species at the ends of many pieces.
+  const pieces = st.startC === st.endC ? 1 : 256;
+  const times = new Float64Array(pieces + 1);
+  const cumulative = new Float64Array(pieces + 1);
+  for (let p = 1; p <= pieces; p++) {
+    times[p] = (st.seconds * p) / pieces;
+    cumulative[p] = cumulative[p - 1] + overStep(st, (t) => intrinsicDiffusivity(reference.dopant, t), times[p - 1], times[p]);
+  }
+  const timeAt = (beta: number) => {
+    let p = 0;
+    while (p + 1 < pieces && cumulative[p + 1] < beta) p++;
+    const f = (beta - cumulative[p]) / (cumulative[p + 1] - cumulative[p]);
+    return Math.min(st.seconds, times[p] + Math.max(0, Math.min(1, f)) * (times[p + 1] - times[p]));
+  };
+  const out: TimeStep[] = [];
+  let beta = 0;
+  let t = 0;
+  for (let k = 0; k < increments.length; k++) {
+    beta += increments[k];
+    const next = k === increments.length - 1 ? st.seconds : timeAt(beta);
+    if (next > t) out.push({ t0: t, t1: next });
+    t = next;
+  }
+  return out;
+}
+
+/**
+ * How much faster than intrinsic a species can diffuse at its peak concentration during a
+ * step (charged-defect model), to start that step's time steps small enough.
+ */
+function speedupOf(plan: Plan, st: StepPlan, present: readonly SpeciesPlan[], peaks: Record<string, number>): number {
+  let speedup = 1;
+  if (st.startC === null) return speedup;
+  for (const s of present) {
+    if (s.model !== 'charged-defect') continue;
+    const t = Math.max(st.startC, st.endC!);
+    const signed = s.type === 'donor' ? peaks[s.name] : -peaks[s.name];
+    speedup = Math.max(speedup, diffusivityAt(s.dopant, t, signed, s.fieldEnhancement) / intrinsicDiffusivity(s.dopant, t));
+  }
+  return speedup;
+}
+
+/** Largest source concentration each species reaches, cm^-3 (for step sizing only). */
+function sourcePeaks(plan: Plan): Record<string, number> {
+  const peaks: Record<string, number> = {};
+  for (const st of plan.steps) {
+    if (!st.dopant) continue;
+    let peak = st.surfaceConcentrationCm3 ?? 0;
+    if (st.surfaceAtSolubility) {
+      const sp = plan.species.find((s) => s.name === st.dopant)!;
+      peak = Math.max(sp.solubility(st.startC!) as number, sp.solubility(st.endC!) as number);
+    }
+    if (st.implant) peak = concentrationFromDose(st.implant.doseCm2, Math.sqrt(2 * Math.PI) * st.implant.straggleUm);
+    if (st.kind === 'film' && st.doseCm2 !== null) peak = concentrationFromDose(st.doseCm2, plan.mesh.dzVolume[0]);
+    peaks[st.dopant] = Math.max(peaks[st.dopant] ?? 0, peak);
+  }
+  return peaks;
+}
+
+/** Runs the recipe's steps in order; every species present diffuses during every timed step. */
 export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation {
   const { mesh, mask, species, steps, numerics } = plan;
   const cells = mesh.nx * mesh.nz;
@@ -100,44 +161,71 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
     concentration[s.name] = new Float64Array(cells);
     entered[s.name] = 0;
   }
-  const present = new Set<string>();
+  const nonlinear = species.filter((s) => s.model === 'charged-defect');
+  const coupled = nonlinear.length > 0 ? new CoupledDiffusivity(plan, cells) : null;
   let hFine = Infinity;
   for (let i = 0; i < mesh.nx; i++) hFine = Math.min(hFine, mesh.dx[i]);
   for (let j = 1; j < mesh.nz; j++) hFine = Math.min(hFine, mesh.z[j] - mesh.z[j - 1]);
 
-  const schedules = timeSchedules(plan, hFine);
+  // Plan every step's time steps first, so progress knows the total.
+  const peaks = sourcePeaks(plan);
+  const introduced = new Set<string>();
+  const budgetBefore: Record<string, number> = {};
+  const schedules = steps.map((st) => {
+    if (st.dopant) introduced.add(st.dopant);
+    const present = species.filter((s) => introduced.has(s.name));
+    const schedule = stepSchedule(plan, st, hFine, present, budgetBefore, speedupOf(plan, st, present, peaks));
+    for (const s of present) budgetBefore[s.name] = (budgetBefore[s.name] ?? 0) + (st.budgetUm2[s.name] ?? 0);
+    return schedule;
+  });
   const total = schedules.reduce((n, s) => n + s.length, 0);
   let done = 0;
   const stepRecords: StepRecord[] = [];
+  const present: SpeciesPlan[] = [];
 
   for (const st of steps) {
     const schedule = schedules[st.index];
-    if (st.kind === 'film' && st.dopant && st.doseCm2 !== null) {
+    const sp = st.dopant ? species.find((s) => s.name === st.dopant)! : null;
+    if (sp && !present.includes(sp)) present.push(sp);
+    if (sp && st.kind === 'film' && st.doseCm2 !== null) {
       // The dose sits in the surface control volume of each open cell.
-      const c = concentration[st.dopant];
+      const c = concentration[sp.name];
       const value = concentrationFromDose(st.doseCm2, mesh.dzVolume[0]);
-      for (let i = 0; i < mesh.nx; i++) if (mask.open[i] === 1) c[i] += value;
-      for (let i = 0; i < mesh.nx; i++) if (mask.open[i] === 1) entered[st.dopant] += value * mesh.dx[i] * mesh.dzVolume[0];
-      present.add(st.dopant);
-    }
-    const heldSpecies = st.kind === 'predeposition' ? st.dopant : null;
-    if (heldSpecies) {
-      present.add(heldSpecies);
-      entered[heldSpecies] += stepper.holdSurface(concentration[heldSpecies], st.surfaceConcentrationCm3!);
-    }
-    let seconds = 0;
-    for (let k = 0; k < schedule.length; k++) {
-      const dt = schedule[k];
-      const scheme = k < numerics.startupSteps ? 'split-implicit' : 'peaceman-rachford';
-      for (const name of present) {
-        const held = name === heldSpecies;
-        const c = concentration[name];
-        entered[name] += stepper.step(c, st.diffusivity[name] * dt, scheme, held, held ? st.surfaceConcentrationCm3! : 0);
+      for (let i = 0; i < mesh.nx; i++) {
+        if (mask.open[i] !== 1) continue;
+        c[i] += value;
+        entered[sp.name] += value * mesh.dx[i] * mesh.dzVolume[0];
       }
-      seconds += dt;
+    }
+    if (sp && st.implant) entered[sp.name] += addImplant(concentration[sp.name], mesh, mask.windows, st.implant);
+    const held = st.kind === 'predeposition' ? sp : null;
+    coupled?.restart();
+    let previousDt = 0;
+    for (let k = 0; k < schedule.length; k++) {
+      const { t0, t1 } = schedule[k];
+      const dt = t1 - t0;
+      const midC = temperatureAt(st, 0.5 * (t0 + t1));
+      const scheme = k < numerics.startupSteps ? 'split-implicit' : 'peaceman-rachford';
+      let surface = 0;
+      if (held) {
+        surface = st.surfaceAtSolubility ? (held.solubility(midC) as number) : st.surfaceConcentrationCm3!;
+        entered[held.name] += stepper.holdSurface(concentration[held.name], surface);
+      }
+      if (coupled) coupled.prepare(concentration, present, midC, previousDt > 0 ? dt / (2 * previousDt) : 0);
+      for (const s of present) {
+        const isHeld = s === held;
+        const c = concentration[s.name];
+        const nu = componentBudgets(st, s, t0, t1);
+        if (coupled && s.model === 'charged-defect') {
+          entered[s.name] += stepper.stepVariable(c, coupled.nodeBudgets(s, nu), scheme, isHeld, surface);
+        } else {
+          entered[s.name] += stepper.step(c, nu.neutral + nu.single + nu.double, scheme, isHeld, surface);
+        }
+      }
+      previousDt = dt;
       done++;
-      guardFinite(concentration, present, stepper, st.index, seconds);
-      options.onProgress?.({ done, total, step: st.index, seconds });
+      guardFinite(concentration, present, stepper, st.index, t1);
+      options.onProgress?.({ done, total, step: st.index, seconds: t1 });
       if (options.shouldStop?.()) throw new StoppedError();
     }
     stepRecords.push({ index: st.index, kind: st.kind, timeSteps: schedule.length, seconds: st.seconds });
@@ -156,6 +244,90 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   return { plan, concentration, ledger, stepRecords };
 }
 
+/** ∫ of each charge-state term of D over [t0, t1] within a step, µm². */
+function componentBudgets(st: StepPlan, s: SpeciesPlan, t0: number, t1: number): ComponentDiffusivities {
+  const pieces = st.startC === st.endC ? 1 : 2;
+  const f = (part: keyof ComponentDiffusivities) => integrate((t) => componentsAt(s.dopant, temperatureAt(st, t))[part], t0, t1, pieces);
+  return { neutral: f('neutral'), single: f('single'), double: f('double') };
+}
+
+/**
+ * Concentration-dependent diffusivity of the charged-defect model over a time step, for
+ * every species at once: n/ni from neutrality over all species and the substrate, taken
+ * from the field extrapolated to the middle of the step, C + θ·(Cⁿ − Cⁿ⁻¹) with
+ * θ = Δtₙ/(2Δtₙ₋₁). Evaluating D at the mid-step state keeps the stepping second order
+ * with one solve per step; the first step of a process step has no history and lags (θ = 0).
+ */
+class CoupledDiffusivity {
+  private readonly previous: Record<string, Float64Array> = {};
+  private readonly hasPrevious = new Set<string>();
+  private readonly net: Float64Array;
+  private readonly ratio: Float64Array;
+  private readonly enhancement: Float64Array;
+  private readonly nu: Float64Array;
+  private ni = 1;
+
+  constructor(private readonly plan: Plan, cells: number) {
+    for (const s of plan.species) this.previous[s.name] = new Float64Array(cells);
+    this.net = new Float64Array(cells);
+    this.ratio = new Float64Array(cells);
+    this.enhancement = new Float64Array(cells);
+    this.nu = new Float64Array(cells);
+  }
+
+  restart(): void {
+    this.hasPrevious.clear();
+  }
+
+  /** Builds n/ni and the field factor at the middle of the coming step; remembers Cⁿ. */
+  prepare(concentration: Record<string, Float64Array>, present: readonly SpeciesPlan[], temperatureC: number, theta: number): void {
+    const { net, ratio, enhancement, plan } = this;
+    const ni = intrinsicCarriersCm3(temperatureC);
+    this.ni = ni;
+    net.fill(plan.substrate.type === 'donor' ? plan.substrate.concentrationCm3 : -plan.substrate.concentrationCm3);
+    for (const s of present) {
+      const c = concentration[s.name];
+      const prev = this.previous[s.name];
+      const w = this.hasPrevious.has(s.name) ? theta : 0;
+      const sign = s.type === 'donor' ? 1 : -1;
+      for (let k = 0; k < c.length; k++) {
+        const mid = c[k] + w * (c[k] - prev[k]);
+        net[k] += sign * (mid > 0 ? mid : 0);
+        prev[k] = c[k];
+      }
+      this.hasPrevious.add(s.name);
+    }
+    const twoNi = 2 * ni;
+    const fourNi2 = 4 * ni * ni;
+    for (let k = 0; k < net.length; k++) {
+      const u = net[k] / twoNi;
+      const root = Math.sqrt(u * u + 1);
+      ratio[k] = u >= 0 ? u + root : 1 / (root - u);
+      const a = net[k] < 0 ? -net[k] : net[k];
+      enhancement[k] = 1 + a / Math.sqrt(a * a + fourNi2);
+    }
+  }
+
+  /** ν = D·τ at every node for one species, from its term budgets. Overwrites the last result. */
+  nodeBudgets(s: SpeciesPlan, b: ComponentDiffusivities): Float64Array {
+    const { nu, ratio, enhancement, net } = this;
+    const field = s.fieldEnhancement;
+    if (s.type === 'donor') {
+      for (let k = 0; k < nu.length; k++) {
+        const r = ratio[k];
+        const h = field && net[k] > 0 ? enhancement[k] : 1;
+        nu[k] = (b.neutral + b.single * r + b.double * r * r) * h;
+      }
+    } else {
+      for (let k = 0; k < nu.length; k++) {
+        const h = field && net[k] < 0 ? enhancement[k] : 1;
+        nu[k] = (b.neutral + b.single / ratio[k]) * h;
+      }
+    }
+    return nu;
+  }
+}
+
 /** Total open window width, µm: doses are reported per unit of open area. */
 export function openWidth(plan: Plan): number {
   let w = 0;
@@ -164,11 +336,11 @@ export function openWidth(plan: Plan): number {
 }
 
 /** Stops the run at the first NaN or Inf: a report must never carry one. */
-function guardFinite(concentration: Record<string, Float64Array>, present: Set<string>,
+function guardFinite(concentration: Record<string, Float64Array>, present: readonly SpeciesPlan[],
                      stepper: AdiStepper, step: number, seconds: number): void {
-  for (const name of present) {
-    if (!stepper.bottomRowFinite(concentration[name])) {
-      throw new SolverError(`the ${name} field stopped being finite in steps[${step}] at ${seconds.toPrecision(4)} s`);
+  for (const s of present) {
+    if (!stepper.bottomRowFinite(concentration[s.name])) {
+      throw new SolverError(`the ${s.name} field stopped being finite in steps[${step}] at ${seconds.toPrecision(4)} s`);
     }
   }
 }
