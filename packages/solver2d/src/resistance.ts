@@ -16,22 +16,25 @@ import { UM_TO_CM } from './units.ts';
 
 /**
  * Sheet conductance (S per square) of a column profile from the surface to `toDepthUm`
- * (the junction), by the trapezoidal rule on the nodes; the integrand is zero at the
- * junction itself, where N_D = N_A.
+ * (the junction), by the trapezoidal rule on the nodes. The last, partial interval ends at
+ * the doping interpolated to `toDepthUm`, counted only while it is still of the surface's
+ * type: about zero at a graded junction, the full value for a layer that ends abruptly there.
  */
 export function sheetConductanceS(donors: ArrayLike<number>, acceptors: ArrayLike<number>, z: ArrayLike<number>,
                                   toDepthUm: number, fit: MobilityFit): number {
+  const sign = Math.sign(donors[0] - acceptors[0]);
+  const sigma = (nd: number, na: number) => (Math.sign(nd - na) === sign ? conductivitySPerCm(nd - na, nd + na, fit) : 0);
   let sum = 0;
-  let prevZ = z[0];
-  let prevS = conductivitySPerCm(donors[0] - acceptors[0], donors[0] + acceptors[0], fit);
-  for (let j = 1; j < z.length && prevZ < toDepthUm; j++) {
+  let prevS = sigma(donors[0], acceptors[0]);
+  for (let j = 1; j < z.length && z[j - 1] < toDepthUm; j++) {
     if (z[j] >= toDepthUm) {
-      sum += 0.5 * prevS * (toDepthUm - prevZ);
+      const t = (toDepthUm - z[j - 1]) / (z[j] - z[j - 1]);
+      const end = sigma((1 - t) * donors[j - 1] + t * donors[j], (1 - t) * acceptors[j - 1] + t * acceptors[j]);
+      sum += 0.5 * (prevS + end) * (toDepthUm - z[j - 1]);
       break;
     }
-    const s = conductivitySPerCm(donors[j] - acceptors[j], donors[j] + acceptors[j], fit);
-    sum += 0.5 * (prevS + s) * (z[j] - prevZ);
-    prevZ = z[j];
+    const s = sigma(donors[j], acceptors[j]);
+    sum += 0.5 * (prevS + s) * (z[j] - z[j - 1]);
     prevS = s;
   }
   return sum * UM_TO_CM;

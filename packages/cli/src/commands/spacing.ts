@@ -16,6 +16,7 @@ export const SPACING_SCHEMA_ID = 'edgewise.spacing/1';
 const GAP_RANGE_UM = [0, 1000] as const;
 const TOL_RANGE_UM = [1e-4, 10] as const;
 const DEFAULT_TOL_UM = 0.01;
+const RANGES: Record<string, readonly [number, number]> = { '--gap': GAP_RANGE_UM, '--tol': TOL_RANGE_UM };
 
 function number(option: string, text: string | undefined, [lo, hi]: readonly [number, number], fallback?: number): number {
   if (text === undefined) {
@@ -27,14 +28,28 @@ function number(option: string, text: string | undefined, [lo, hi]: readonly [nu
   return v;
 }
 
+const OPTIONS = {
+  gap: { type: 'string' }, tol: { type: 'string' }, out: { type: 'string' },
+  'error-solves': { type: 'string' }, quiet: { type: 'boolean', default: false },
+} as const;
+
+/** parseArgs, with its complaints (some span lines, e.g. "--gap -1") made into one line. */
+function parse(args: string[]) {
+  try {
+    return parseArgs({ args, allowPositionals: true, strict: true, options: OPTIONS });
+  } catch (e) {
+    if (!(e instanceof TypeError && (e as { code?: string }).code?.startsWith('ERR_PARSE_ARGS'))) throw e;
+    const k = args.findIndex((a, i) => i > 0 && /^-\d/.test(a) && args[i - 1] in RANGES);
+    if (k > 0) {
+      const [lo, hi] = RANGES[args[k - 1]];
+      throw new UsageError(`${args[k - 1]}: must be a number from ${lo} to ${hi} µm (got ${JSON.stringify(args[k])})`);
+    }
+    throw new UsageError(`${e.message.split('\n')[0]} (usage: ${SPACING_USAGE})`);
+  }
+}
+
 export function spacingCommand(args: string[]): number {
-  const { values, positionals } = parseArgs({
-    args, allowPositionals: true, strict: true,
-    options: {
-      gap: { type: 'string' }, tol: { type: 'string' }, out: { type: 'string' },
-      'error-solves': { type: 'string' }, quiet: { type: 'boolean', default: false },
-    },
-  });
+  const { values, positionals } = parse(args);
   if (positionals.length !== 1) throw new UsageError(`spacing takes one recipe file (usage: ${SPACING_USAGE})`);
   const gapUm = number('--gap', values.gap, GAP_RANGE_UM);
   const toleranceUm = number('--tol', values.tol, TOL_RANGE_UM, DEFAULT_TOL_UM);
