@@ -421,14 +421,17 @@ export class App {
       if (typeof um === 'number') s.dataset.um = String(um);
       return s;
     };
+    const errors = (w as { errors?: Record<string, number> } | undefined)?.errors ?? {};
+    const pm = (key: string) => (typeof errors[key] === 'number' ? ` ± ${errors[key].toFixed(3)}` : '');
+    const lateralErr = typeof errors.lateralLeftUm === 'number' ? ` (± ${Math.max(errors.lateralLeftUm, errors.lateralRightUm ?? 0).toFixed(3)})` : '';
+    const line2 = document.createElement('div');
     body.append(
       part('window', 'window', `${fmtUm(width, 2)} µm`, width),
       ' · ',
-      part('xj', 'xj', `${fmtUm(w?.junctionDepthUm)} µm`, w?.junctionDepthUm),
-      ' · ',
-      part('lateral', 'lateral', `${fmtUm(w?.lateralLeftUm)} | ${fmtUm(w?.lateralRightUm)} µm`, w?.lateralLeftUm),
+      part('xj', 'xj', `${fmtUm(w?.junctionDepthUm)}${pm('junctionDepthUm')} µm`, w?.junctionDepthUm),
     );
-    div.append(head, body);
+    line2.append(part('lateral', 'lateral', `${fmtUm(w?.lateralLeftUm)} | ${fmtUm(w?.lateralRightUm)} µm${lateralErr}`, w?.lateralLeftUm));
+    div.append(head, body, line2);
     return div;
   }
 
@@ -440,7 +443,7 @@ export class App {
       const c = this.caption(t);
       c.style.left = `${v.left}px`;
       c.style.top = `${Math.min(this.stage.height - 30, v.top + v.height + 17)}px`;
-      c.style.maxWidth = `${Math.max(v.width, 160)}px`;
+      c.style.maxWidth = `${Math.max(v.width, (this.grid?.cellWidth ?? 200) - 50)}px`;
       this.captions.append(c);
     }
   }
@@ -564,6 +567,24 @@ export class App {
     const [px, py] = worldToCanvas(tile.view, xUm, zUm);
     const r = this.stage.canvas.getBoundingClientRect();
     return [r.left + px, r.top + py];
+  }
+
+  /** Draws a frame now and waits for the GPU to finish it; returns the time taken, ms. */
+  drawNow(): number {
+    const started = performance.now();
+    this.layoutDirty = true;
+    this.frame();
+    const gl = this.stage.renderer.getContext();
+    gl.readPixels(0, 0, 1, 1, gl.RGBA, gl.UNSIGNED_BYTE, new Uint8Array(4));
+    return performance.now() - started;
+  }
+
+  /** Zooms the focused tile about the centre of the view (the benchmark's pan/zoom probe). */
+  zoomBy(factor: number, dxPx = 0, dyPx = 0): void {
+    if (this.mode.kind !== 'focus') return;
+    const area = { width: this.stage.width, height: this.stage.height };
+    this.mode.state = pan(zoomAbout(this.mode.state, area, area.width / 2, area.height / 2, factor), dxPx, dyPx);
+    this.layoutDirty = true;
   }
 
   focusRun(runId: string): Promise<void> {

@@ -16,7 +16,7 @@ export const MASK_BAND_PX = 7;
 const BAND = MASK_BAND_PX + 1;
 
 /** Room around each tile's plot, CSS px: axis labels left and below, the caption under them. */
-export const MARGIN = { left: 42, right: 10, top: 14, bottom: 52 };
+export const MARGIN = { left: 42, right: 10, top: 14, bottom: 64 };
 
 export interface GridLayout {
   columns: number;
@@ -33,66 +33,43 @@ export interface GridLayout {
 /** Stretches offered when the depth is much smaller than the width. */
 export const STRETCHES = [1, 2, 5, 10, 20, 50];
 
-/** Columns for n tiles in an area, so that cells come out closest to the tiles' own shape. */
-export function chooseColumns(n: number, areaWidth: number, areaHeight: number, tileAspect: number, fixed?: number): number {
-  if (fixed && fixed > 0) return Math.min(n, fixed);
-  let best = 1;
-  let bestScale = 0;
-  for (let c = 1; c <= n; c++) {
-    const r = Math.ceil(n / c);
-    const w = areaWidth / c - MARGIN.left - MARGIN.right;
-    const h = areaHeight / r - MARGIN.top - MARGIN.bottom;
-    // Size of the largest tile of this aspect that fits the cell.
-    const scale = Math.min(w, h * tileAspect);
-    if (scale > bestScale) {
-      bestScale = scale;
-      best = c;
-    }
-  }
-  return best;
-}
-
 /**
- * Lays out tiles of the given extents in a grid filling `area`. `stretch` 0 picks the
- * largest of STRETCHES that still fits (at least 1).
+ * Lays out tiles of the given extents in a grid filling `area`. `stretch` 0 tries each of
+ * STRETCHES and keeps the layout whose tiles cover the most pixels (the smaller stretch
+ * when two come within 10 %), so a shallow cross-section is not drawn as a thin strip.
  */
 export function layoutGrid(extents: Extent[], area: { width: number; height: number }, stretch = 0, fixedColumns?: number): GridLayout {
   const n = extents.length;
   const maxW = Math.max(...extents.map((e) => e.widthUm));
   const maxD = Math.max(...extents.map((e) => e.depthUm));
-  const aspectAt = (s: number) => maxW / (maxD * s);
-  // Try stretches from the largest down: the first whose tiles fit at full width wins.
-  const candidates = stretch > 0 ? [stretch] : [...STRETCHES].reverse();
-  let chosen: GridLayout | null = null;
-  for (const s of candidates) {
-    const columns = chooseColumns(n, area.width, area.height, aspectAt(s), fixedColumns);
-    const rows = Math.max(1, Math.ceil(n / columns));
-    const cellWidth = Math.floor(area.width / columns);
-    const cellHeight = Math.floor(area.height / rows);
-    const plotW = Math.max(10, cellWidth - MARGIN.left - MARGIN.right);
-    const plotH = Math.max(10, cellHeight - MARGIN.top - MARGIN.bottom);
-    let pxX = plotW / maxW;
-    let pxZ = pxX * s;
-    if (pxZ * maxD > plotH) {
-      if (stretch === 0 && s > 1) continue; // too tall at this stretch: try a smaller one
-      pxZ = plotH / maxD;
-      pxX = pxZ / s;
+  let best: { layout: GridLayout; pixels: number } | null = null;
+  for (const s of stretch > 0 ? [stretch] : STRETCHES) {
+    for (let columns = 1; columns <= n; columns++) {
+      if (fixedColumns && columns !== Math.min(n, fixedColumns)) continue;
+      const layout = gridAt(extents, area, s, columns, maxW, maxD);
+      const pixels = layout.pxPerUmX * maxW * layout.pxPerUmZ * maxD;
+      if (!best || pixels > best.pixels * (layout.stretch > best.layout.stretch ? 1.1 : 1)) best = { layout, pixels };
     }
-    const views = extents.map((_, k) => {
-      const col = k % columns;
-      const row = Math.floor(k / columns);
-      return {
-        left: col * cellWidth + MARGIN.left,
-        top: row * cellHeight + MARGIN.top - BAND,
-        width: Math.max(1, Math.round(extents[k].widthUm * pxX)),
-        height: Math.max(1, Math.round(extents[k].depthUm * pxZ)) + BAND,
-        x0Um: 0, z0Um: -BAND / pxZ, pxPerUmX: pxX, pxPerUmZ: pxZ,
-      };
-    });
-    chosen = { columns, rows, cellWidth, cellHeight, pxPerUmX: pxX, pxPerUmZ: pxZ, stretch: s, views };
-    break;
   }
-  return chosen!;
+  return best!.layout;
+}
+
+function gridAt(extents: Extent[], area: { width: number; height: number }, s: number, columns: number, maxW: number, maxD: number): GridLayout {
+  const rows = Math.max(1, Math.ceil(extents.length / columns));
+  const cellWidth = Math.floor(area.width / columns);
+  const cellHeight = Math.floor(area.height / rows);
+  const plotW = Math.max(10, cellWidth - MARGIN.left - MARGIN.right);
+  const plotH = Math.max(10, cellHeight - MARGIN.top - MARGIN.bottom);
+  const pxX = Math.min(plotW / maxW, plotH / (maxD * s));
+  const pxZ = pxX * s;
+  const views = extents.map((e, k) => ({
+    left: (k % columns) * cellWidth + MARGIN.left,
+    top: Math.floor(k / columns) * cellHeight + MARGIN.top - BAND,
+    width: Math.max(1, Math.round(e.widthUm * pxX)),
+    height: Math.max(1, Math.round(e.depthUm * pxZ)) + BAND,
+    x0Um: 0, z0Um: -BAND / pxZ, pxPerUmX: pxX, pxPerUmZ: pxZ,
+  }));
+  return { columns, rows, cellWidth, cellHeight, pxPerUmX: pxX, pxPerUmZ: pxZ, stretch: s, views };
 }
 
 /** The focused tile: the whole area, the world window given by pan and zoom. */

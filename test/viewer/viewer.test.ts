@@ -1,0 +1,259 @@
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import type { Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import {
+  ARTIFACTS, bilinear, buildViewer, cliRun, glPixels, launchChromium, makeWidthSweep, readNpy, readReport,
+  recipeWithWindow, startView, tempDir, waitForTiles, type SweepRun, type ViewServer,
+} from './support.ts';
+
+// The viewer in real Chromium on folders the real CLI wrote. Window widths from 0.5 µm to
+// 8 µm around the demo recipe's window centre: the narrowest are near two diffusion lengths.
+const WIDTHS = [8, 0.5, 2, 1, 4];
+
+let work: string;
+let sweepDir: string;
+let runs: SweepRun[];
+let server: ViewServer;
+let browser: Awaited<ReturnType<typeof launchChromium>>;
+let page: Page;
+
+async function snapshot(p: Page) {
+  return p.evaluate(() => window.edgewise.app.snapshot());
+}
+
+async function shot(p: Page, name: string): Promise<void> {
+  mkdirSync(ARTIFACTS, { recursive: true });
+  await p.screenshot({ path: join(ARTIFACTS, `${name}.png`) });
+}
+
+beforeAll(async () => {
+  work = tempDir('viewer');
+  sweepDir = join(work, 'sweep');
+  const [, built] = await Promise.all([
+    Promise.resolve().then(() => { runs = makeWidthSweep(sweepDir, WIDTHS); }),
+    buildViewer(),
+  ]);
+  expect(built).toMatch(/dist$/);
+  const recipeFile = join(work, 'live-recipe.json');
+  writeFileSync(recipeFile, JSON.stringify(recipeWithWindow(8)));
+  server = await startView(sweepDir, ['--recipe', recipeFile]);
+  browser = await launchChromium();
+  page = browser.page;
+  page.on('pageerror', (e) => { throw e; });
+  await page.goto(server.url);
+  await waitForTiles(page);
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await server?.stop();
+});
+
+describe('edgewise view on a sweep folder', () => {
+  it('serves on 127.0.0.1 only and refuses paths outside the folder', async () => {
+    expect(new URL(server.url).hostname).toBe('127.0.0.1');
+    const outside = await fetch(`${server.url}data/..%2f..%2fetc%2fpasswd`);
+    expect([403, 404]).toContain(outside.status);
+    const report = await fetch(`${server.url}data/${runs[0].dir}/report.json`);
+    expect(report.status).toBe(200);
+  });
+
+  it('shows one tile per run, sorted by window width, each captioned with the xj of its report.json', async () => {
+    const s = await snapshot(page);
+    expect(s.problems).toEqual([]);
+    expect(s.tiles).toHaveLength(WIDTHS.length);
+    const sorted = [...runs].sort((a, b) => a.widthUm - b.widthUm);
+    expect(s.tiles.map((t) => t.dir)).toEqual(sorted.map((r) => r.dir));
+    const captions = await page.$$eval('.caption', (els) => els.map((e) => ({
+      id: (e as HTMLElement).dataset.runId, xj: e.querySelector('.xj')!.textContent, window: e.querySelector('.window')!.textContent,
+    })));
+    expect(captions).toHaveLength(WIDTHS.length);
+    for (const c of captions) {
+      const run = runs.find((r) => r.id === c.id)!;
+      const report = readReport(join(sweepDir, run.dir)); // source: the CLI's report.json
+      expect(c.xj).toMatch(new RegExp(`^xj ${report.windows[0].junctionDepthUm.toFixed(3)}( ± [0-9.]+)? µm$`));
+      expect(c.window).toBe(`window ${run.widthUm.toFixed(2)} µm`);
+    }
+    // One length scale: every tile has the same pixels per µm.
+    expect(new Set(s.tiles.map((t) => t.view!.pxPerUmX)).size).toBe(1);
+    await shot(page, 'sweep-grid');
+  });
+
+  it('draws the junction contour where report.json says it is', async () => {
+    const points: { run: string; at: [number, number] }[] = [];
+    for (const run of runs) {
+      const report = readReport(join(sweepDir, run.dir)); // source: report.json junction polylines
+      const line: [number, number][] = report.junctions[0].polylinesUm[0];
+      for (let k = 0; k < line.length; k += Math.max(1, Math.floor(line.length / 12))) points.push({ run: run.id, at: line[k] });
+    }
+    const client = await page.evaluate((pts) => pts.map((p) => window.edgewise.app.worldToClient(p.run, p.at[0], p.at[1])!), points);
+    // Away from the contour: mid-depth of the substrate far under the mask, 3 µm from the left wall.
+    const control = await page.evaluate((ids) => ids.map((id) => window.edgewise.app.worldToClient(id, 3, 1.7)!), runs.map((r) => r.id));
+    const withLines = await glPixels(page, [...client, ...control]);
+    await page.evaluate(() => window.edgewise.app.set({ contours: false }));
+    const without = await glPixels(page, [...client, ...control]);
+    await page.evaluate(() => window.edgewise.app.set({ contours: true }));
+    const differs = (a: number[], b: number[]) => Math.abs(a[0] - b[0]) + Math.abs(a[1] - b[1]) + Math.abs(a[2] - b[2]) > 30;
+    const onLine = client.map((_, k) => differs(withLines[k], without[k]));
+    // Every sampled contour point changes colour when the contour is drawn (4 px line: common practice for visibility).
+    expect(onLine.filter(Boolean).length).toBe(client.length);
+    for (let k = 0; k < control.length; k++) expect(differs(withLines[client.length + k], without[client.length + k])).toBe(false);
+  });
+
+  it('focuses a clicked tile; after zoom and pan the hover readout matches field.npy there within 1 %', async () => {
+    const run = runs.find((r) => r.widthUm === 8)!;
+    const dir = join(sweepDir, run.dir);
+    const report = readReport(dir);
+    const [field, x, z] = await Promise.all([readNpy(join(dir, 'field.npy')), readNpy(join(dir, 'x.npy')), readNpy(join(dir, 'z.npy'))]);
+    const target = await page.evaluate((id) => window.edgewise.app.worldToClient(id, 12, 0.5)!, run.id);
+    await page.mouse.click(target[0], target[1]);
+    await page.evaluate(() => window.edgewise.app.nextFrame());
+    expect((await snapshot(page)).focused).toBe(run.id);
+    // Zoom in about the region to be probed, then drag the view: both change the world window.
+    const before = (await snapshot(page)).tiles.find((t) => t.id === run.id)!.view!;
+    const centre = await page.evaluate(([id, zz]) => window.edgewise.app.worldToClient(id as string, 12, zz as number)!, [run.id, 0.8 * report.windows[0].junctionDepthUm]);
+    await page.mouse.move(centre[0], centre[1]);
+    await page.mouse.wheel(0, -300);
+    await page.mouse.down();
+    await page.mouse.move(centre[0] + 40, centre[1] - 20, { steps: 4 });
+    await page.mouse.up();
+    await page.evaluate(() => window.edgewise.app.nextFrame());
+    const after = (await snapshot(page)).tiles.find((t) => t.id === run.id)!.view!;
+    expect(after.pxPerUmX).toBeGreaterThan(before.pxPerUmX * 1.3);
+    expect(after.x0Um).not.toBeCloseTo(before.x0Um, 3);
+
+    const w = report.windows[0];
+    const targets: [number, number][] = [
+      [w.centreUm + 1.1, 0.3 * w.junctionDepthUm], // inside the diffused (p-type) region
+      [w.x0Um - 0.4, 0.5 * w.junctionDepthUm], // under the mask, still inside the junction
+      [w.centreUm - 0.7, 0.5 * (w.junctionDepthUm + report.crossSection.depthUm)], // below the junction, in the substrate
+    ];
+    for (const [tx, tz] of targets) {
+      const p = await page.evaluate(([id, xx, zz]) => window.edgewise.app.worldToClient(id as string, xx as number, zz as number)!, [run.id, tx, tz]);
+      // The probe must land inside the focused plot for the readout to mean anything.
+      expect(p[0]).toBeGreaterThan(after.left);
+      expect(p[0]).toBeLessThan(after.left + after.width);
+      expect(p[1]).toBeGreaterThan(after.top);
+      expect(p[1]).toBeLessThan(after.top + after.height);
+      await page.mouse.move(p[0], p[1]);
+      const readout = await page.$eval('.readout', (el) => ({
+        hidden: (el as HTMLElement).hidden,
+        rows: [...el.querySelectorAll('div')].map((d) => ({ ...(d as HTMLElement).dataset, text: d.textContent }) as Record<string, string | undefined>),
+      }));
+      expect(readout.hidden).toBe(false);
+      const xShown = Number(/([-\d.]+) µm/.exec(readout.rows.find((r) => r.quantity === 'x')!.text!)![1]);
+      const zShown = Number(/([-\d.]+) µm/.exec(readout.rows.find((r) => r.quantity === 'z')!.text!)![1]);
+      // The pointer is where we aimed, to within a pixel at this zoom.
+      expect(Math.abs(xShown - tx)).toBeLessThan(2 / after.pxPerUmX);
+      expect(Math.abs(zShown - tz)).toBeLessThan(2 / after.pxPerUmZ);
+      report.field.layers.forEach((name: string, layer: number) => {
+        const row = readout.rows.find((r) => r.layer === name)!;
+        const shown = Number(/(-?[\d.]+e-?\d+)/.exec(row.text!)![1]);
+        // source: bilinear interpolation of field.npy between the mesh nodes at the shown (x, z)
+        const expected = bilinear(field.data, layer, x.data, z.data, report.crossSection.widthUm, xShown, zShown);
+        expect(Math.abs(shown - expected) / Math.abs(expected)).toBeLessThan(0.01);
+      });
+      const net = bilinear(field.data, 0, x.data, z.data, report.crossSection.widthUm, xShown, zShown);
+      // Boron into a phosphorus substrate: acceptors exceed donors above the junction.
+      expect(readout.rows.find((r) => r.quantity === 'side')!.text).toMatch(net < 0 ? /p-type/ : /n-type/);
+      expect(tz < w.junctionDepthUm ? net < 0 : net > 0).toBe(true);
+    }
+    await shot(page, 'focus-readout');
+    await page.keyboard.press('Escape');
+    await page.evaluate(() => window.edgewise.app.nextFrame());
+    expect((await snapshot(page)).mode).toBe('grid');
+  });
+
+  it('plots junction depth and lateral encroachment against window width', async () => {
+    const dots = await page.$$eval('#plot circle', (els) => els.map((e) => ({
+      series: e.parentElement!.getAttribute('class'), id: (e as SVGElement).dataset.runId, um: Number((e as SVGElement).dataset.valueUm),
+    })));
+    expect(dots.filter((d) => /junctionDepthUm/.test(d.series!))).toHaveLength(WIDTHS.length);
+    for (const d of dots.filter((dd) => /junctionDepthUm/.test(dd.series!))) {
+      const run = runs.find((r) => r.id === d.id)!;
+      expect(d.um).toBe(readReport(join(sweepDir, run.dir)).windows[0].junctionDepthUm); // source: report.json
+    }
+    expect(dots.filter((d) => /lateralUm/.test(d.series!))).toHaveLength(WIDTHS.length);
+  });
+
+  it('re-runs an edited recipe in a worker with progress, without freezing the page, and the shown xj changes', async () => {
+    await page.keyboard.press('Escape'); // back to the grid, whatever the test before left
+    const liveXj = async (minutes: number) => {
+      const input = page.locator('#panel [data-path="steps[1].minutes"] input');
+      await input.fill(String(minutes));
+      await input.press('Enter');
+      await page.evaluate(() => { document.body.dataset.live = ''; });
+      const frames = page.evaluate(() => new Promise<number>((resolve) => {
+        // Frames the page draws while the solver runs: none if the solve blocked the page.
+        let n = 0;
+        const tick = () => {
+          if ((document.body.dataset.live ?? '') !== '') resolve(n);
+          else {
+            n++;
+            requestAnimationFrame(tick);
+          }
+        };
+        requestAnimationFrame(tick);
+      }));
+      await page.locator('#panel button', { hasText: 'run in the background' }).click();
+      await page.waitForFunction(() => (document.body.dataset.live ?? '').startsWith('done'), null, { timeout: 60_000 });
+      await page.waitForSelector('.caption[data-run-id="live"] .xj');
+      const xj = await page.$eval('.caption[data-run-id="live"] .xj', (e) => Number((e as HTMLElement).dataset.um));
+      const progress = await page.$eval('#progress progress', (e) => (e as HTMLProgressElement).value);
+      return { xj, frames: await frames, progress };
+    };
+    const first = await liveXj(60);
+    // Same recipe as the CLI run of the 8 µm window: the worker's solver2d gives the CLI's xj (source: report.json).
+    const cli = readReport(join(sweepDir, runs.find((r) => r.widthUm === 8)!.dir)).windows[0].junctionDepthUm;
+    expect(first.xj).toBeCloseTo(cli, 5);
+    expect(first.progress).toBe(1);
+    expect(first.frames).toBeGreaterThan(2);
+    const longer = await liveXj(240);
+    // Four times the drive-in: xj grows, roughly as the square root of Dt (closed form, erfc/Gaussian profiles).
+    expect(longer.xj).toBeGreaterThan(first.xj * 1.3);
+    const caption = await page.$eval('.caption[data-run-id="live"] .xj', (e) => e.textContent);
+    expect(caption).toMatch(new RegExp(`^xj ${longer.xj.toFixed(3)}( ± [0-9.]+)? µm$`));
+    expect((await snapshot(page)).tiles).toHaveLength(WIDTHS.length + 1);
+    await shot(page, 'live-rerun');
+  });
+
+  it('opens a folder chosen with the picker and frees the old tiles\' GPU memory', async () => {
+    await page.evaluate(() => window.edgewise.app.nextFrame());
+    const before = await snapshot(page);
+    const single = join(work, 'single');
+    cliRun(recipeWithWindow(3), single, join(work, '.recipes'));
+    await page.evaluate(() => { window.edgewise.app.timing.firstFrameMs = null; });
+    await page.setInputFiles('#folder-input', single);
+    await page.waitForFunction(() => window.edgewise.app.snapshot().tiles.length === 1 && window.edgewise.app.snapshot().timing.firstFrameMs !== null, null, { timeout: 30_000 });
+    const after = await snapshot(page);
+    expect(after.problems).toEqual([]);
+    // three.js counts live geometries; each tile owns the same number (source: Tile's own buffers).
+    const perTile = before.gpu.geometries / before.tiles.length;
+    expect(after.gpu.geometries).toBe(perTile);
+  });
+});
+
+describe('broken folders', () => {
+  it('shows which file is malformed and why, not a blank page', async () => {
+    const dir = join(work, 'broken');
+    cliRun(recipeWithWindow(4), dir, join(work, '.recipes'));
+    writeFileSync(join(dir, 'report.json'), '{ "schema": "edgewise.report/1", "windows": [ {"x0Um": 10,');
+    const view = await startView(dir);
+    const other = await browser.context.newPage();
+    try {
+      await other.goto(view.url);
+      await waitForTiles(other);
+      const message = await other.locator('#messages').innerText();
+      expect(message).toContain('report.json');
+      expect(message).toMatch(/not valid JSON/);
+      expect(await other.locator('#messages').isVisible()).toBe(true);
+      expect(await other.locator('.empty').innerText()).toMatch(/Nothing to show/);
+      mkdirSync(ARTIFACTS, { recursive: true });
+      await other.screenshot({ path: join(ARTIFACTS, 'malformed-report.png') });
+    } finally {
+      await other.close();
+      await view.stop();
+    }
+  });
+});
