@@ -20,10 +20,11 @@ export function invertedNodes(donors: Float64Array, acceptors: Float64Array, sub
 }
 
 export function labelRegions(inverted: Uint8Array, nx: number, nz: number): Regions {
-  const labels = new Int32Array(nx * nz);
-  const stack = new Int32Array(nx * nz);
+  const cells = nx * nz;
+  const labels = new Int32Array(cells);
+  const stack = new Int32Array(cells);
   let count = 0;
-  for (let seed = 0; seed < labels.length; seed++) {
+  for (let seed = 0; seed < cells; seed++) {
     if (inverted[seed] !== 1 || labels[seed] !== 0) continue;
     count++;
     let top = 0;
@@ -32,16 +33,11 @@ export function labelRegions(inverted: Uint8Array, nx: number, nz: number): Regi
     while (top > 0) {
       const k = stack[--top];
       const i = k % nx;
-      const visit = (n: number) => {
-        if (inverted[n] === 1 && labels[n] === 0) {
-          labels[n] = count;
-          stack[top++] = n;
-        }
-      };
-      if (i > 0) visit(k - 1);
-      if (i + 1 < nx) visit(k + 1);
-      if (k >= nx) visit(k - nx);
-      if (k + nx < labels.length) visit(k + nx);
+      // Each node enters the stack once: it is labelled when pushed.
+      if (i > 0 && inverted[k - 1] === 1 && labels[k - 1] === 0) { labels[k - 1] = count; stack[top++] = k - 1; }
+      if (i + 1 < nx && inverted[k + 1] === 1 && labels[k + 1] === 0) { labels[k + 1] = count; stack[top++] = k + 1; }
+      if (k >= nx && inverted[k - nx] === 1 && labels[k - nx] === 0) { labels[k - nx] = count; stack[top++] = k - nx; }
+      if (k + nx < cells && inverted[k + nx] === 1 && labels[k + nx] === 0) { labels[k + nx] = count; stack[top++] = k + nx; }
     }
   }
   return { labels, count };
