@@ -77,19 +77,32 @@ export function contourSvg(report: Report): string {
     }
   }
 
+  // Junction-to-junction gap across each stripe, as a dimension line just below the surface.
+  for (const pair of report.spacings ?? []) {
+    const left = report.windows[pair.left];
+    const right = report.windows[pair.right];
+    if (pair.merged || !pair.surfaceGapUm || left.lateralRightUm === null || right.lateralLeftUm === null) continue;
+    const a = X(left.x1Um + left.lateralRightUm);
+    const b = X(right.x0Um - right.lateralLeftUm);
+    const y = Z(0) + 10;
+    out.push(`<line class="gap" x1="${px(a)}" y1="${px(y)}" x2="${px(b)}" y2="${px(y)}" stroke="#1f5fa8" stroke-width="1"/>`);
+    for (const x of [a, b]) out.push(`<line x1="${px(x)}" y1="${px(y - 4)}" x2="${px(x)}" y2="${px(y + 4)}" stroke="#1f5fa8" stroke-width="1"/>`);
+    out.push(`<text x="${px(0.5 * (a + b))}" y="${px(y + 14)}" text-anchor="middle" fill="#1f5fa8" stroke="#f4f1ea" stroke-width="3" paint-order="stroke">${pair.surfaceGapUm.toFixed(3)} µm</text>`);
+  }
+
   // Axes: x along the surface (top), depth down the left side, both in µm.
   const tick = 5;
   for (const x of ticks(widthUm, Math.max(2, Math.floor(w / 80)))) {
     out.push(`<line x1="${px(X(x))}" y1="${px(Z(depthUm))}" x2="${px(X(x))}" y2="${px(Z(depthUm) + tick)}" stroke="#555"/>`);
     out.push(`<text x="${px(X(x))}" y="${px(Z(depthUm) + tick + 11)}" text-anchor="middle">${x}</text>`);
   }
-  for (const z of ticks(depthUm, Math.max(2, Math.floor(h / 40)))) {
+  for (const z of ticks(depthUm, Math.max(2, Math.floor(h / 30)))) {
     out.push(`<line x1="${px(X(0) - tick)}" y1="${px(Z(z))}" x2="${px(X(0))}" y2="${px(Z(z))}" stroke="#555"/>`);
     out.push(`<text x="${px(X(0) - tick - 3)}" y="${px(Z(z) + 4)}" text-anchor="end">${z}</text>`);
   }
   out.push(`<text x="${px(X(widthUm / 2))}" y="${px(height - 6)}" text-anchor="middle">x (µm)</text>`);
   out.push(`<text transform="translate(14 ${px(Z(depthUm / 2))}) rotate(-90)" text-anchor="middle">depth z (µm)</text>`);
-  const heading = `${report.title ? `${report.title} — ` : ''}junction (N_D = N_A) in red, mask in black; to scale`;
+  const heading = `${report.title ? `${report.title} — ` : ''}junction (N_D = N_A) in red, mask in black, junction gaps in blue; to scale`;
   out.push(`<text x="${px(MARGIN.left)}" y="16" font-size="12">${escapeXml(heading)}</text>`);
   out.push('</svg>');
   return `${out.join('\n')}\n`;

@@ -93,8 +93,11 @@ export function engineeringResults(sim: Simulation, field: Field, grid: NodeGrid
     const area = regionConductance(mesh, field.donors, field.acceptors, regions, label, fit);
     const left = surfaceCrossing(grid, centre, -1);
     const right = surfaceCrossing(grid, centre, 1);
+    // An edge whose junction has merged with a neighbour's meets the surface beyond that
+    // neighbour: its turn belongs to the neighbour's outer edge, not to this window.
+    const beyondNeighbour = (x: number) => windows.some(([a, b]) => (a !== x0 || b !== x1) && (x < x0 ? b > x && b <= x0 : a < x && a >= x1));
     const radius = (x: number | null) => {
-      if (x === null) return null;
+      if (x === null || beyondNeighbour(x)) return null;
       const line = contourEndingAt(contours, x);
       return line ? edgeCurvature(grid, line, x)?.radiusUm ?? null : null;
     };
