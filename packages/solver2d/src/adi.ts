@@ -196,7 +196,7 @@ export class AdiStepper {
     const implicit = pr ? 0.5 : 1;
     const explicit = pr ? 0.5 : 0;
     if (held) this.savedRows.set(c.subarray(0, 2 * nx));
-    for (let j = 0; j < nz; j++) for (let i = 0; i < nx; i++) nuT[i * nz + j] = nu[j * nx + i];
+    transpose(nu, nuT, nx, nz);
     const rowHeld = held ? this.surfaceRowKind : this.noneHeldX;
     const columnHeld = held ? this.openColumnKind : this.sealedZKind;
     variableSweep(c, this.star, nu, nx, nz, ax, cx, az, cz, implicit, explicit, this.cpBlock, rowHeld, this.open, false, surfaceValue);
@@ -513,5 +513,13 @@ function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n
     y1 = dst[o + 1] - cp[c + 1] * y1; dst[o + 1] = y1;
     y2 = dst[o + 2] - cp[c + 2] * y2; dst[o + 2] = y2;
     y3 = dst[o + 3] - cp[c + 3] * y3; dst[o + 3] = y3;
+  }
+}
+
+/** dst[i·nz + j] = src[j·nx + i]: a hot loop of its own, so the caller is never compiled mid-loop. */
+function transpose(src: Float64Array, dst: Float64Array, nx: number, nz: number): void {
+  for (let j = 0; j < nz; j++) {
+    const row = j * nx;
+    for (let i = 0; i < nx; i++) dst[i * nz + j] = src[row + i];
   }
 }
