@@ -27,7 +27,7 @@ export const WINDOW_ERROR_KEYS = [
   'junctionDepthUm', 'lateralLeftUm', 'lateralRightUm', 'effectiveWidthUm', 'drawnPlusLateralUm',
   'curvatureRadiusLeftUm', 'curvatureRadiusRightUm', 'sheetResistanceOhmSq', 'lineResistanceOhmPerUm',
 ] as const;
-export const SPACING_ERROR_KEYS = ['surfaceGapUm', 'minimumGapUm'] as const;
+export const SPACING_ERROR_KEYS = ['surfaceGapUm', 'minimumGapUm', 'minimumGapDepthUm'] as const;
 
 export type WindowErrorKey = (typeof WINDOW_ERROR_KEYS)[number];
 export type SpacingErrorKey = (typeof SPACING_ERROR_KEYS)[number];
