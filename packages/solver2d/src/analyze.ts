@@ -1,7 +1,7 @@
 import { engineeringResults, type ReportResults, type WindowResults } from './engineering.ts';
 import { buildField, type Field } from './field.ts';
 import {
-  columnAt, crossings, junctionIndicator, surfaceCrossing, wallPaddedGrid, zeroContours,
+  columnAt, crossings, junctionIndicator, surfaceCrossings, wallPaddedGrid, zeroContours,
   type NodeGrid, type Polyline,
 } from './junction.ts';
 import type { LedgerEntry, Simulation } from './simulate.ts';
@@ -13,10 +13,13 @@ export interface WindowReport extends WindowResults {
   x0Um: number;
   x1Um: number;
   centreUm: number;
-  /** shallowest junction below the window centre, µm; null if the surface there is not inverted */
+  /** shallowest junction below the window centre, µm; null if there is none */
   junctionDepthUm: number | null;
   /** every junction below the window centre, from the surface down, µm */
   junctionDepthsUm: number[];
+  /** each of those junctions with where it meets the surface beyond x0 and x1 (nested
+   *  junctions: the k-th from the top meets the surface k-th going outward), µm */
+  junctionStack: { depthUm: number; lateralLeftUm: number | null; lateralRightUm: number | null }[];
   /** reach of the surface junction beyond x0 (left) and x1 (right), under the mask, µm */
   lateralLeftUm: number | null;
   lateralRightUm: number | null;
@@ -80,12 +83,16 @@ export function analyze(sim: Simulation): Analysis {
   const windows: WindowReport[] = plan.mask.windows.map(([x0, x1]) => {
     const centre = 0.5 * (x0 + x1);
     const depths = crossings(columnAt(grid, centre, column), mesh.z);
-    const surfaceInverted = columnAt(grid, centre, column)[0] > 0;
-    const depth = surfaceInverted && depths.length > 0 ? depths[0] : null;
-    const left = surfaceInverted ? surfaceCrossing(grid, centre, -1) : null;
-    const right = surfaceInverted ? surfaceCrossing(grid, centre, 1) : null;
-    const lateralLeft = left === null ? null : x0 - left;
-    const lateralRight = right === null ? null : right - x1;
+    const depth = depths.length > 0 ? depths[0] : null;
+    const lefts = surfaceCrossings(grid, centre, -1);
+    const rights = surfaceCrossings(grid, centre, 1);
+    const stack = depths.map((d, k) => ({
+      depthUm: rounded(d),
+      lateralLeftUm: k < lefts.length ? rounded(x0 - lefts[k]) : null,
+      lateralRightUm: k < rights.length ? rounded(rights[k] - x1) : null,
+    }));
+    const lateralLeft = depth !== null && lefts.length > 0 ? x0 - lefts[0] : null;
+    const lateralRight = depth !== null && rights.length > 0 ? rights[0] - x1 : null;
     const lateralMean = lateralLeft !== null && lateralRight !== null ? 0.5 * (lateralLeft + lateralRight) : lateralLeft ?? lateralRight;
     const surfaceBySpecies: Record<string, number> = {};
     const centreDose: Record<string, number> = {};
@@ -100,6 +107,7 @@ export function analyze(sim: Simulation): Analysis {
       x0Um: x0, x1Um: x1, centreUm: centre,
       junctionDepthUm: depth === null ? null : rounded(depth),
       junctionDepthsUm: depths.map((d) => rounded(d)),
+      junctionStack: stack,
       lateralLeftUm: lateralLeft === null ? null : rounded(lateralLeft),
       lateralRightUm: lateralRight === null ? null : rounded(lateralRight),
       lateralToVerticalRatio: depth && lateralMean !== null ? rounded(lateralMean / depth, 4) : null,

@@ -200,3 +200,24 @@ export function surfaceCrossing(grid: NodeGrid, from: number, direction: -1 | 1)
   }
   return null;
 }
+
+/**
+ * Every place the surface row changes sign going outward from `from` towards `direction`,
+ * nearest first, µm: the k-th is where the k-th junction below a window meets the surface
+ * for nested junctions (an emitter inside a base inside a well).
+ */
+export function surfaceCrossings(grid: NodeGrid, from: number, direction: -1 | 1): number[] {
+  const { xs, values, nx } = grid;
+  const out: number[] = [];
+  let prevX = from;
+  let prevV = surfaceValueAt(grid, from);
+  for (let n = 0; n < nx; n++) {
+    const i = direction < 0 ? nx - 1 - n : n;
+    if (direction < 0 ? xs[i] >= from : xs[i] <= from) continue;
+    const v = values[i];
+    if ((v > 0) !== (prevV > 0)) out.push(zeroBetween(prevX, xs[i], prevV, v));
+    prevX = xs[i];
+    prevV = v;
+  }
+  return out;
+}

@@ -22,6 +22,8 @@ const windowReport = z.strictObject({
   centreUm: z.number(),
   junctionDepthUm: length.describe('shallowest junction below the window centre, µm'),
   junctionDepthsUm: z.array(z.number()).describe('every junction below the window centre, from the surface down, µm'),
+  junctionStack: z.array(z.strictObject({ depthUm: z.number(), lateralLeftUm: z.number().nullable(), lateralRightUm: z.number().nullable() }))
+    .describe('each junction below the centre with where it meets the surface beyond x0 and x1, µm'),
   lateralLeftUm: length.describe('reach of the surface junction beyond x0, under the mask, µm'),
   lateralRightUm: length.describe('reach of the surface junction beyond x1, under the mask, µm'),
   lateralToVerticalRatio: z.number().nullable(),
