@@ -80,9 +80,14 @@ export function analyze(sim: Simulation): Analysis {
   const netGrid = wallPaddedGrid(mesh, field.layers.net.data);
   const speciesGrids = Object.fromEntries(plan.species.map((s) => [s.name, wallPaddedGrid(mesh, sim.concentration[s.name])]));
 
+  const warnings = [...plan.warnings];
   const windows: WindowReport[] = plan.mask.windows.map(([x0, x1]) => {
     const centre = 0.5 * (x0 + x1);
-    const depths = crossings(columnAt(grid, centre, column), mesh.z);
+    const centreColumn = columnAt(grid, centre, column);
+    const depths = crossings(centreColumn, mesh.z);
+    if (centreColumn[mesh.nz - 1] > 0) {
+      warnings.push(`below the window [${x0}, ${x1}] µm the diffused region reaches the bottom of the cross-section (${rounded(mesh.depthUm, 4)} µm): the deepest junction is not inside it; give a larger crossSection.depthUm`);
+    }
     const depth = depths.length > 0 ? depths[0] : null;
     const lefts = surfaceCrossings(grid, centre, -1);
     const rights = surfaceCrossings(grid, centre, 1);
@@ -145,7 +150,7 @@ export function analyze(sim: Simulation): Analysis {
       minutes: r.seconds / 60, timeSteps: r.timeSteps,
     })),
     field: { layers: field.names, shape: [field.names.length, mesh.nz, mesh.nx] },
-    warnings: [...plan.warnings],
+    warnings,
   };
   return { report, field, grid };
 }

@@ -5,6 +5,7 @@ import { buildMask, maskEdges, type Mask, type Window } from './mask.ts';
 import { buildMesh, gradedAxis, type Mesh, type SpacingRule } from './mesh.ts';
 import { DIFFUSION_MODELS, RecipeError, type Recipe, type Step } from './recipe.ts';
 import { interpolateSolubility, solidSolubilityCm3 } from './solubility.ts';
+import { intrinsicCarriersCm3 } from './intrinsic.ts';
 import { concentrationFromDose, minutesToSeconds } from './units.ts';
 
 /** One step of the schedule, in solver units. */
@@ -297,11 +298,13 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
     const budget = Math.max(thermalBudgetUm2[sp.name] - sumBefore(steps, st.index, sp.name), 0);
     let peak: number;
     let reach: number;
+    let start = 0;
     if (st.kind === 'implant' && st.implant) {
       const { projectedRangeUm: rp, straggleUm: dr, lateralStraggleUm: dl, doseCm2 } = st.implant;
       const sigma = Math.sqrt(dr * dr + 2 * budget);
-      peak = concentrationFromDose(doseCm2, Math.sqrt(2 * Math.PI) * sigma);
-      reach = rp + sigma * Math.sqrt(2 * Math.log(Math.max(peak / background, 2)));
+      peak = concentrationFromDose(doseCm2, Math.sqrt(2 * Math.PI) * dr);
+      start = rp;
+      reach = rp + sigma * Math.sqrt(2 * Math.log(Math.max(concentrationFromDose(doseCm2, Math.sqrt(2 * Math.PI) * sigma) / background, 2)));
       near.push({ spacingUm: dr / 8, reachUm: rp + 4 * dr });
       nearX.push({ spacingUm: dl / 8, reachUm: 4 * dl });
       depthNeed = Math.max(depthNeed, rp + sigma * Math.sqrt(2 * Math.log(Math.max(peak / (BOTTOM_FRACTION * background), 2))));
@@ -322,8 +325,13 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
       }
     }
     if (sp.model === 'charged-defect') {
-      const fastBudget = fastestBudget(sp, steps, st.index, peak, sp.fieldEnhancement);
-      reach = Math.max(reach, 1.6 * Math.sqrt(fastBudget));
+      // Box-like front near 1.6·√(∫Ds dt) (Fair 1981), then an intrinsic tail below ni.
+      const front = start + 1.6 * Math.sqrt(fastestBudget(sp, steps, st.index, peak, sp.fieldEnhancement));
+      const hottest = Math.max(...steps.filter((x) => x.index >= st.index && x.startC !== null).map((x) => Math.max(x.startC!, x.endC!)));
+      const below = background / Math.min(peak, Number.isFinite(hottest) ? intrinsicCarriersCm3(hottest) : peak);
+      const tail = 2 * Math.sqrt(budget);
+      reach = Math.max(reach, front + tail * erfcinv(Math.min(0.5, below)));
+      depthNeed = Math.max(depthNeed, front + tail * erfcinv(Math.min(0.1, BOTTOM_FRACTION * below)));
     }
     reachUm = Math.max(reachUm, reach);
   }
