@@ -66,6 +66,11 @@ const BAD: [string, (r: R) => void, string][] = [
   ['unknown dopant', (r) => { r.steps[0].dopant = 'Ga'; }, 'steps[0].dopant'],
   ['unknown step kind', (r) => { r.steps[1].kind = 'bake'; }, 'steps[1].kind'],
   ['temperature outside the tables', (r) => { r.steps[1].temperatureC = 1500; }, 'steps[1].temperatureC'],
+  ['a ramp that leaves the tables', (r) => { r.steps[1].temperatureC = [900, 1500]; }, 'steps[1].temperatureC'],
+  ['a ramp with a non-positive duration', (r) => { r.steps[1] = { kind: 'drive-in', temperatureC: [900, 1100], minutes: 0 }; }, 'steps[1].minutes'],
+  ['a negative dose', (r) => { r.steps[0] = { kind: 'implant', dopant: 'B', doseCm2: -1e15, projectedRangeUm: 0.1, straggleUm: 0.03 }; }, 'steps[0].doseCm2'],
+  ['a solubility source outside its table', (r) => { r.steps[0].surfaceConcentrationCm3 = 'solubility'; r.steps[0].temperatureC = 1300; }, 'steps[0].surfaceConcentrationCm3'],
+  ['a diffusion model that does not exist', (r) => { r.diffusion = { model: 'fast' }; }, 'diffusion.model'],
 ];
 
 describe('bad recipes: exit 2, one line naming the field, nothing written', () => {
