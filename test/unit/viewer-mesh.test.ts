@@ -3,7 +3,8 @@ import { describe, expect, it } from 'vitest';
 import { encodeNpy } from '../../packages/cli/src/files.ts';
 import { layoutGrid, MASK_BAND_PX } from '../../packages/viewer/src/layout.ts';
 import {
-  gridIndices, gridPositions, layerVertexValues, maskedIntervals, meshLinePositions, nodeGrid,
+  gridIndices, gridPositions, layerVertexValues, maskedIntervals, meshLinePositions, nodeGrid, subGridPositions,
+  subGridValues, thinAxis,
 } from '../../packages/viewer/src/mesh-geometry.ts';
 import { parseNpy } from '../../packages/viewer/src/npy.ts';
 import { bracket, junctionSide, sampleField } from '../../packages/viewer/src/sample.ts';
@@ -57,6 +58,38 @@ describe('mesh to geometry', () => {
   it('masks the surface outside the windows', () => {
     expect(maskedIntervals([{ x0Um: 8, x1Um: 16 }], 24)).toEqual([[0, 8], [16, 24]]);
     expect(maskedIntervals([{ x0Um: 12, x1Um: 15 }, { x0Um: 0, x1Um: 4 }], 20)).toEqual([[4, 12], [15, 20]]);
+  });
+});
+
+describe('level of detail', () => {
+  // A graded axis: 0.01 µm steps near 0 growing by 15 % a step (as the solver's meshes grow).
+  const axis = Float64Array.from({ length: 60 }, (_, k) => 0.01 * (1.15 ** k - 1) / 0.15);
+
+  it('keeps only mesh node lines, at least the asked spacing apart, with both ends', () => {
+    const keep = thinAxis(axis, 0.2);
+    expect(keep[0]).toBe(0);
+    expect(keep[keep.length - 1]).toBe(axis.length - 1);
+    for (let k = 1; k < keep.length; k++) {
+      expect(keep[k]).toBeGreaterThan(keep[k - 1]);
+      expect(axis[keep[k]] - axis[keep[k - 1]]).toBeGreaterThanOrEqual(0.2 - 1e-12);
+    }
+    expect(keep.length).toBeLessThan(axis.length);
+  });
+
+  it('keeps every line where the mesh is already coarser than the spacing', () => {
+    const keep = [...thinAxis(axis, 0.2)];
+    for (let i = 1; i < axis.length; i++) if (axis[i] - axis[i - 1] >= 0.2 && i < axis.length - 1) expect(keep).toContain(i);
+    expect(thinAxis(axis, 0).length).toBe(axis.length);
+    expect(thinAxis(axis, 0.001).length).toBe(axis.length);
+  });
+
+  it('draws a sub-grid at the kept nodes with their own values', () => {
+    const sub = { columns: Uint32Array.from([0, 2, 5]), rows: Uint32Array.from([0, 2]) };
+    const pos = subGridPositions(grid, sub);
+    expect([pos[3], pos[4]]).toEqual([2, -0]); // node (2, 0)
+    expect([pos[3 * 5], pos[3 * 5 + 1]]).toEqual([10, -1.5]); // node (5, 2)
+    const full = Float32Array.from({ length: 6 * 3 }, (_, k) => k);
+    expect([...subGridValues(full, grid, sub)]).toEqual([0, 2, 5, 12, 14, 17]);
   });
 });
 

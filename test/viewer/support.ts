@@ -133,19 +133,24 @@ export async function waitForTiles(page: Page): Promise<void> {
   }, null, { timeout: 60_000 });
 }
 
-/** RGBA of the WebGL canvas at client points (the overlay with the axes is not included). */
-export function glPixels(page: Page, points: [number, number][]): Promise<number[][]> {
-  return page.evaluate((pts) => {
-    const c = document.querySelector('canvas.stage-gl') as HTMLCanvasElement;
+/**
+ * RGBA of the page's picture at client points: the WebGL canvas (the field, the mask) with
+ * the overlay canvas (contours, axes) drawn over it, as the eye sees them.
+ */
+export function stagePixels(page: Page, points: [number, number][], layers: 'all' | 'gl' = 'all'): Promise<number[][]> {
+  return page.evaluate(([pts, which]) => {
+    const gl = document.querySelector('canvas.stage-gl') as HTMLCanvasElement;
+    const overlay = document.querySelector('canvas.stage-overlay') as HTMLCanvasElement;
     const copy = document.createElement('canvas');
-    copy.width = c.width;
-    copy.height = c.height;
+    copy.width = gl.width;
+    copy.height = gl.height;
     const ctx = copy.getContext('2d')!;
-    ctx.drawImage(c, 0, 0);
-    const r = c.getBoundingClientRect();
-    const ratio = c.width / r.width;
-    return pts.map(([x, y]) => Array.from(ctx.getImageData(Math.floor((x - r.left) * ratio), Math.floor((y - r.top) * ratio), 1, 1).data));
-  }, points);
+    ctx.drawImage(gl, 0, 0);
+    if (which === 'all') ctx.drawImage(overlay, 0, 0, gl.width, gl.height);
+    const r = gl.getBoundingClientRect();
+    const ratio = gl.width / r.width;
+    return (pts as [number, number][]).map(([x, y]) => Array.from(ctx.getImageData(Math.floor((x - r.left) * ratio), Math.floor((y - r.top) * ratio), 1, 1).data));
+  }, [points, layers] as const);
 }
 
 /**

@@ -3,7 +3,7 @@ import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
-  ARTIFACTS, bilinear, buildViewer, cliRun, glPixels, launchChromium, makeWidthSweep, readNpy, readReport,
+  ARTIFACTS, bilinear, buildViewer, cliRun, stagePixels, launchChromium, makeWidthSweep, readNpy, readReport,
   recipeWithWindow, startView, tempDir, waitForTiles, type SweepRun, type ViewServer,
 } from './support.ts';
 
@@ -90,13 +90,13 @@ describe('edgewise view on a sweep folder', () => {
     const client = await page.evaluate((pts) => pts.map((p) => window.edgewise.app.worldToClient(p.run, p.at[0], p.at[1])!), points);
     // Away from the contour: mid-depth of the substrate far under the mask, 3 µm from the left wall.
     const control = await page.evaluate((ids) => ids.map((id) => window.edgewise.app.worldToClient(id, 3, 1.7)!), runs.map((r) => r.id));
-    const withLines = await glPixels(page, [...client, ...control]);
+    const withLines = await stagePixels(page, [...client, ...control]);
     await page.evaluate(() => window.edgewise.app.set({ contours: false }));
-    const without = await glPixels(page, [...client, ...control]);
+    const without = await stagePixels(page, [...client, ...control]);
     await page.evaluate(() => window.edgewise.app.set({ contours: true }));
     const differs = (a: number[], b: number[]) => Math.abs(a[0] - b[0]) + Math.abs(a[1] - b[1]) + Math.abs(a[2] - b[2]) > 30;
     const onLine = client.map((_, k) => differs(withLines[k], without[k]));
-    // Every sampled contour point changes colour when the contour is drawn (4 px line: common practice for visibility).
+    // Every sampled contour point changes colour when the contour is drawn (a 3.5 px line: common practice for visibility).
     expect(onLine.filter(Boolean).length).toBe(client.length);
     for (let k = 0; k < control.length; k++) expect(differs(withLines[client.length + k], without[client.length + k])).toBe(false);
   });

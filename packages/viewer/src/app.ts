@@ -45,6 +45,8 @@ interface PanelState {
 /** Timing of the last load, ms (for the benchmark and the tests). */
 export interface Timing {
   loadMs: number | null;
+  /** building the tiles' geometry from the loaded arrays */
+  buildMs: number | null;
   firstFrameMs: number | null;
   sinceNavigationMs: number | null;
 }
@@ -64,7 +66,7 @@ export class App {
   private framePending = false;
   private frameWaiters: (() => void)[] = [];
   private loadStartedAt: number | null = null;
-  readonly timing: Timing = { loadMs: null, firstFrameMs: null, sinceNavigationMs: null };
+  readonly timing: Timing = { loadMs: null, buildMs: null, firstFrameMs: null, sinceNavigationMs: null };
   private readonly panel: PanelState = {
     quantity: NET, autoRange: true, fromLog10: 14, toLog10: 20, isoLines: 0, depthStretch: 0,
     mask: true, mesh: false, contours: true,
@@ -137,6 +139,7 @@ export class App {
     this.liveTile = null;
     this.data = data;
     this.mode = { kind: 'grid' };
+    const started = performance.now();
     this.tiles = data.runs.map((r) => new Tile(r, this.stage.colourMap));
     if (data.recipe !== null && data.recipe !== undefined) this.setLiveRecipe(data.recipe, `recipe.json in ${data.label}`);
     this.refreshQuantities();
@@ -144,6 +147,7 @@ export class App {
     drawPlot(document.getElementById('plot')!, plotPoints(data.runs));
     this.setEmpty(this.tiles.length === 0 ? 'Nothing to show: see the messages above.' : null);
     this.applyStyle();
+    this.timing.buildMs = performance.now() - started;
   }
 
   setLiveRecipe(recipe: unknown, label: string): void {
@@ -597,7 +601,7 @@ export class App {
     return {
       mode: this.mode.kind,
       focused: this.mode.kind === 'focus' ? this.mode.tile.run.id : null,
-      tiles: this.tiles.map((t) => ({ id: t.run.id, dir: t.run.dir, values: t.run.values, view: t.view, columns: t.grid.columns, rows: t.grid.rows })),
+      tiles: this.tiles.map((t) => ({ id: t.run.id, dir: t.run.dir, values: t.run.values, view: t.view, columns: t.grid.columns, rows: t.grid.rows, detail: t.detail })),
       problems: [...(this.data?.problems ?? []), ...this.liveProblems],
       frames: this.stage.frames,
       timing: { ...this.timing },

@@ -114,15 +114,18 @@ async function readNpy(source: FileSource, file: string) {
 /** One run folder; throws FileProblem for the first file that is missing or wrong. */
 export async function loadRun(source: FileSource, dir: string, id: string, values: Record<string, number | string>): Promise<RunData> {
   const reportFile = join(dir, 'report.json');
+  const fieldFile = join(dir, 'field.npy');
+  const xFile = join(dir, 'x.npy');
+  const zFile = join(dir, 'z.npy');
+  // All four requests at once; the report is still checked first, so its problem is the one named.
+  const arrays = Promise.all([readNpy(source, fieldFile), readNpy(source, xFile), readNpy(source, zFile)]);
+  arrays.catch(() => undefined);
   const report = decodeJson(reportFile, await source.read(reportFile));
   const problem = reportProblem(report);
   if (problem) throw new FileProblem(reportFile, problem);
   const r = report as Report;
   const [layers, nz, nx] = r.field.shape;
-  const fieldFile = join(dir, 'field.npy');
-  const xFile = join(dir, 'x.npy');
-  const zFile = join(dir, 'z.npy');
-  const [field, x, z] = await Promise.all([readNpy(source, fieldFile), readNpy(source, xFile), readNpy(source, zFile)]);
+  const [field, x, z] = await arrays;
   if (field.shape.join() !== [layers, nz, nx].join()) {
     throw new FileProblem(fieldFile, `has shape [${field.shape.join(', ')}], report.json says [${layers}, ${nz}, ${nx}]`);
   }

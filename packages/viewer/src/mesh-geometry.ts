@@ -46,21 +46,7 @@ export function gridPositions(grid: NodeGrid): Float32Array {
 
 /** Two triangles per mesh quad, counter-clockwise as seen on screen (x right, −z up). */
 export function gridIndices(grid: NodeGrid): Uint32Array {
-  const width = grid.xs.length;
-  const rows = grid.zs.length;
-  const out = new Uint32Array(6 * (width - 1) * (rows - 1));
-  let k = 0;
-  for (let j = 0; j + 1 < rows; j++) {
-    for (let i = 0; i + 1 < width; i++) {
-      const a = j * width + i; // top left (surface side)
-      const b = a + 1;
-      const c = a + width; // below a
-      const d = c + 1;
-      out[k++] = a; out[k++] = c; out[k++] = b;
-      out[k++] = b; out[k++] = c; out[k++] = d;
-    }
-  }
-  return out;
+  return subGridIndices(grid.xs.length, grid.zs.length);
 }
 
 /**
@@ -113,5 +99,68 @@ export function maskedIntervals(windows: readonly { x0Um: number; x1Um: number }
     from = Math.max(from, x1);
   }
   if (from < widthUm) out.push([from, widthUm]);
+  return out;
+}
+
+/**
+ * Node lines to keep along one axis so that kept neighbours are at least `minSpacing` apart
+ * (µm): the level of detail for a view in which finer lines would fall within a pixel or
+ * two of each other. The first and last lines (surface, bottom, walls) are always kept; a
+ * coarse stretch of the mesh keeps every line. Every kept line is a mesh node line, so the
+ * picture stays on the real mesh.
+ */
+export function thinAxis(coords: Float64Array, minSpacing: number): Uint32Array {
+  const n = coords.length;
+  if (!(minSpacing > 0) || n <= 2) return Uint32Array.from({ length: n }, (_, k) => k);
+  const keep: number[] = [0];
+  for (let i = 1; i < n - 1; i++) if (coords[i] - coords[keep[keep.length - 1]] >= minSpacing) keep.push(i);
+  // The last line is kept; the one before it goes if the two are too close.
+  if (keep.length > 1 && coords[n - 1] - coords[keep[keep.length - 1]] < minSpacing) keep.pop();
+  keep.push(n - 1);
+  return Uint32Array.from(keep);
+}
+
+/** A sub-grid of node lines: what a level of detail draws. */
+export interface SubGrid {
+  columns: Uint32Array;
+  rows: Uint32Array;
+}
+
+export function subGridPositions(grid: NodeGrid, sub: SubGrid): Float32Array {
+  const out = new Float32Array(3 * sub.columns.length * sub.rows.length);
+  let k = 0;
+  for (const j of sub.rows) {
+    for (const i of sub.columns) {
+      out[k++] = grid.xs[i];
+      out[k++] = -grid.zs[j];
+      out[k++] = 0;
+    }
+  }
+  return out;
+}
+
+/** Values at the sub-grid's nodes, from values at every node of the full grid (row by row). */
+export function subGridValues(full: Float32Array, grid: NodeGrid, sub: SubGrid): Float32Array {
+  const width = grid.xs.length;
+  const out = new Float32Array(sub.columns.length * sub.rows.length);
+  let k = 0;
+  for (const j of sub.rows) for (const i of sub.columns) out[k++] = full[j * width + i];
+  return out;
+}
+
+/** Triangles of a sub-grid with `columns` × `rows` nodes (same winding as gridIndices). */
+export function subGridIndices(columns: number, rows: number): Uint32Array {
+  const out = new Uint32Array(6 * (columns - 1) * (rows - 1));
+  let k = 0;
+  for (let j = 0; j + 1 < rows; j++) {
+    for (let i = 0; i + 1 < columns; i++) {
+      const a = j * columns + i;
+      const b = a + 1;
+      const c = a + columns;
+      const d = c + 1;
+      out[k++] = a; out[k++] = c; out[k++] = b;
+      out[k++] = b; out[k++] = c; out[k++] = d;
+    }
+  }
   return out;
 }

@@ -7,8 +7,9 @@ const BACKGROUND = 0xf6f6f4;
 
 /**
  * One WebGL renderer for every tile: each tile is drawn into its own rectangle of the one
- * canvas with viewport and scissor. A 2D canvas over it carries the axes (ticks and µm
- * labels), which need text.
+ * canvas with viewport and scissor. A 2D canvas over it carries what is lines and text:
+ * the junction contours and the axes (ticks and µm labels). Software WebGL draws wide
+ * lines slowly; the 2D canvas draws them antialiased in a few milliseconds.
  */
 export class Stage {
   readonly canvas: HTMLCanvasElement;
@@ -86,7 +87,9 @@ export class Stage {
     ctx.lineWidth = 1;
     for (const tile of tiles) {
       const v = tile.view;
-      if (v) drawTileAxes(ctx, v, tile.widthUm, tile.depthUm);
+      if (!v) continue;
+      if (tile.showContours) drawContours(ctx, v, tile.contours);
+      drawTileAxes(ctx, v, tile.widthUm, tile.depthUm);
     }
   }
 
@@ -94,6 +97,44 @@ export class Stage {
     this.colourMap.dispose();
     this.renderer.dispose();
   }
+}
+
+/**
+ * Junction contours, clipped to the tile: a dark line under a light one, so the contour
+ * shows on every colour of the map. Points closer than half a pixel to the last one drawn
+ * are skipped (a 400-column contour in a 150 px tile needs no more).
+ */
+function drawContours(ctx: CanvasRenderingContext2D, v: TileView, lines: Float64Array[]): void {
+  if (lines.length === 0) return;
+  ctx.save();
+  ctx.beginPath();
+  ctx.rect(v.left, v.top, v.width, v.height);
+  ctx.clip();
+  ctx.beginPath();
+  for (const line of lines) {
+    let lastX = NaN;
+    let lastY = NaN;
+    for (let k = 0; k < line.length; k += 2) {
+      const x = v.left + (line[k] - v.x0Um) * v.pxPerUmX;
+      const y = v.top + (line[k + 1] - v.z0Um) * v.pxPerUmZ;
+      if (k === 0) ctx.moveTo(x, y);
+      else if (k + 2 >= line.length || Math.abs(x - lastX) + Math.abs(y - lastY) >= 0.5) ctx.lineTo(x, y);
+      else continue;
+      lastX = x;
+      lastY = y;
+    }
+  }
+  ctx.lineJoin = 'round';
+  ctx.lineCap = 'round';
+  ctx.strokeStyle = '#101014';
+  ctx.lineWidth = 3.5;
+  ctx.stroke();
+  ctx.strokeStyle = '#ffffff';
+  ctx.lineWidth = 1.6;
+  ctx.stroke();
+  ctx.restore();
+  ctx.strokeStyle = '#444';
+  ctx.lineWidth = 1;
 }
 
 function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: number, depthUm: number): void {

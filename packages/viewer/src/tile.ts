@@ -1,12 +1,10 @@
 import * as THREE from 'three';
-import { LineMaterial } from 'three/examples/jsm/lines/LineMaterial.js';
-import { LineSegments2 } from 'three/examples/jsm/lines/LineSegments2.js';
-import { LineSegmentsGeometry } from 'three/examples/jsm/lines/LineSegmentsGeometry.js';
 import type { ColourRange } from './colour-scale.ts';
 import { MASK_BAND_PX } from './layout.ts';
 import type { RunData } from './load.ts';
 import {
-  gridIndices, gridPositions, layerVertexValues, maskedIntervals, meshLinePositions, nodeGrid, type NodeGrid,
+  layerVertexValues, maskedIntervals, meshLinePositions, nodeGrid, subGridIndices, subGridPositions, subGridValues,
+  thinAxis, type NodeGrid, type SubGrid,
 } from './mesh-geometry.ts';
 
 /** What a tile shows, shared by every tile. */
@@ -33,6 +31,9 @@ export interface TileView {
   pxPerUmX: number;
   pxPerUmZ: number;
 }
+
+/** Kept node lines are at least this many CSS px apart: finer detail is lost in the pixels. */
+export const DETAIL_PX = 2;
 
 const vertexShader = /* glsl */ `
 attribute float level;
@@ -75,17 +76,20 @@ export class Tile {
   readonly grid: NodeGrid;
   readonly widthUm: number;
   readonly depthUm: number;
-  private readonly geometry = new THREE.BufferGeometry();
+  private geometry = new THREE.BufferGeometry();
+  private readonly field: THREE.Mesh;
   private readonly material: THREE.ShaderMaterial;
+  /** log10 |value| at every node of the full grid, per layer */
   private readonly levels = new Map<string, Float32Array>();
+  private sub: SubGrid | null = null;
+  private detailKey = '';
   private readonly maskGroup = new THREE.Group();
   private readonly maskGeometry = new THREE.PlaneGeometry(1, 1);
   private readonly maskMaterial = new THREE.MeshBasicMaterial({ color: 0x8a8f98 });
   private readonly meshLines: THREE.LineSegments;
-  private readonly contourUnder: LineSegments2;
-  private readonly contourOver: LineSegments2;
-  private readonly contourGeometry = new LineSegmentsGeometry();
-  private readonly contourMaterials: LineMaterial[];
+  /** junction polylines as flat [x0, z0, x1, z1, …] in µm, drawn by the stage's 2D overlay */
+  readonly contours: Float64Array[];
+  showContours = true;
   private layer = '';
   view: TileView | null = null;
 
@@ -94,15 +98,14 @@ export class Tile {
     this.widthUm = report.crossSection.widthUm;
     this.depthUm = run.z[run.z.length - 1];
     this.grid = nodeGrid(run.x, run.z, this.widthUm);
-    this.geometry.setAttribute('position', new THREE.BufferAttribute(gridPositions(this.grid), 3));
-    this.geometry.setIndex(new THREE.BufferAttribute(gridIndices(this.grid), 1));
     this.material = new THREE.ShaderMaterial({
       vertexShader, fragmentShader,
       uniforms: { colourMap: { value: colourMap }, lo: { value: 14 }, hi: { value: 20 }, isoStep: { value: 0 } },
     });
-    const field = new THREE.Mesh(this.geometry, this.material);
-    field.frustumCulled = false;
-    this.scene.add(field);
+    this.field = new THREE.Mesh(this.geometry, this.material);
+    this.field.frustumCulled = false;
+    this.scene.add(this.field);
+    this.setDetail(0, 0);
 
     for (const [a, b] of maskedIntervals(report.windows, this.widthUm)) {
       const slab = new THREE.Mesh(this.maskGeometry, this.maskMaterial);
@@ -119,27 +122,7 @@ export class Tile {
     this.meshLines.visible = false;
     this.scene.add(this.meshLines);
 
-    const segments: number[] = [];
-    for (const junction of report.junctions) {
-      for (const line of junction.polylinesUm) {
-        for (let k = 0; k + 1 < line.length; k++) segments.push(line[k][0], -line[k][1], 0, line[k + 1][0], -line[k + 1][1], 0);
-      }
-    }
-    if (segments.length > 0) this.contourGeometry.setPositions(segments);
-    // A dark line under a light one: the contour shows on every colour of the map.
-    this.contourMaterials = [
-      new LineMaterial({ color: 0x101014, linewidth: 4, worldUnits: false }),
-      new LineMaterial({ color: 0xffffff, linewidth: 2, worldUnits: false }),
-    ];
-    this.contourUnder = new LineSegments2(this.contourGeometry, this.contourMaterials[0]);
-    this.contourOver = new LineSegments2(this.contourGeometry, this.contourMaterials[1]);
-    this.contourUnder.position.z = 0.3;
-    this.contourOver.position.z = 0.4;
-    for (const l of [this.contourUnder, this.contourOver]) {
-      l.frustumCulled = false;
-      l.visible = segments.length > 0;
-      this.scene.add(l);
-    }
+    this.contours = report.junctions.flatMap((j) => j.polylinesUm.map((line) => Float64Array.from(line.flat())));
   }
 
   /** Index of a layer by name in this run, or -1. */
@@ -160,22 +143,57 @@ export class Tile {
   applyStyle(style: TileStyle): void {
     if (style.layer !== this.layer) {
       this.layer = style.layer;
-      let levels = this.levels.get(style.layer);
-      if (!levels) {
-        const l = this.layerIndex(style.layer);
-        levels = l >= 0 ? layerVertexValues(this.run.field, l, this.grid) : new Float32Array(this.grid.xs.length * this.grid.rows);
-        this.levels.set(style.layer, levels);
-      }
-      this.geometry.setAttribute('level', new THREE.BufferAttribute(levels, 1));
+      this.updateLevels();
     }
     this.material.uniforms.lo.value = style.range.lo;
     this.material.uniforms.hi.value = style.range.hi;
     this.material.uniforms.isoStep.value = style.isoStepDecades;
     this.maskGroup.visible = style.showMask;
     this.meshLines.visible = style.showMesh;
-    const hasContours = this.contourGeometry.getAttribute('instanceStart') !== undefined;
-    this.contourUnder.visible = style.showContours && hasContours;
-    this.contourOver.visible = style.showContours && hasContours;
+    this.showContours = style.showContours;
+  }
+
+  private fullLevels(): Float32Array {
+    let levels = this.levels.get(this.layer);
+    if (!levels) {
+      const l = this.layerIndex(this.layer);
+      levels = l >= 0 ? layerVertexValues(this.run.field, l, this.grid) : new Float32Array(this.grid.xs.length * this.grid.rows);
+      this.levels.set(this.layer, levels);
+    }
+    return levels;
+  }
+
+  private updateLevels(): void {
+    if (!this.sub) return;
+    this.geometry.setAttribute('level', new THREE.BufferAttribute(subGridValues(this.fullLevels(), this.grid, this.sub), 1));
+  }
+
+  /**
+   * Level of detail: the node lines kept are at least `minX`, `minZ` µm apart (0 keeps
+   * all). Spacings are rounded down to a power of two, so zooming rebuilds the geometry
+   * only now and then; the old geometry's GPU buffers are freed.
+   */
+  setDetail(minX: number, minZ: number): void {
+    const round = (v: number) => (v > 0 ? 2 ** Math.floor(Math.log2(v)) : 0);
+    const rx = round(minX);
+    const rz = round(minZ);
+    const key = `${rx}:${rz}`;
+    if (key === this.detailKey) return;
+    this.detailKey = key;
+    const sub = { columns: thinAxis(this.grid.xs, rx), rows: thinAxis(this.grid.zs, rz) };
+    const geometry = new THREE.BufferGeometry();
+    geometry.setAttribute('position', new THREE.BufferAttribute(subGridPositions(this.grid, sub), 3));
+    geometry.setIndex(new THREE.BufferAttribute(subGridIndices(sub.columns.length, sub.rows.length), 1));
+    this.geometry.dispose();
+    this.geometry = geometry;
+    this.sub = sub;
+    this.field.geometry = geometry;
+    if (this.layer) this.updateLevels();
+  }
+
+  /** Node lines drawn across and down at the current level of detail. */
+  get detail(): [number, number] {
+    return [this.sub?.columns.length ?? 0, this.sub?.rows.length ?? 0];
   }
 
   /** Points the camera at the view's world window and sizes the mask band to it. */
@@ -189,7 +207,7 @@ export class Tile {
     this.camera.bottom = -bottom;
     this.camera.updateProjectionMatrix();
     this.maskGroup.scale.y = MASK_BAND_PX / view.pxPerUmZ;
-    for (const m of this.contourMaterials) m.resolution.set(view.width, view.height);
+    this.setDetail(DETAIL_PX / view.pxPerUmX, DETAIL_PX / view.pxPerUmZ);
   }
 
   dispose(): void {
@@ -199,8 +217,6 @@ export class Tile {
     this.maskMaterial.dispose();
     this.meshLines.geometry.dispose();
     (this.meshLines.material as THREE.Material).dispose();
-    this.contourGeometry.dispose();
-    for (const m of this.contourMaterials) m.dispose();
     this.levels.clear();
     this.scene.clear();
   }
