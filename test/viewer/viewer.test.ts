@@ -1,4 +1,4 @@
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -57,6 +57,14 @@ describe('edgewise view on a sweep folder', () => {
     expect([403, 404]).toContain(outside.status);
     const report = await fetch(`${server.url}data/${runs[0].dir}/report.json`);
     expect(report.status).toBe(200);
+    // The batch endpoint gives the same bytes as the files on disk, and refuses the rest.
+    const asked = [`${runs[0].dir}/x.npy`, `${runs[0].dir}/nothing.npy`, '../../etc/passwd'];
+    const batch = Buffer.from(await (await fetch(`${server.url}api/files?${asked.map((p) => `p=${encodeURIComponent(p)}`).join('&')}`)).arrayBuffer());
+    const headLength = batch.readUInt32LE(0);
+    const index = JSON.parse(batch.subarray(4, 4 + headLength).toString());
+    expect(index.map((e: { error?: string }) => e.error ?? null)).toEqual([null, 'not found', 'outside the opened folder']);
+    const onDisk = readFileSync(join(sweepDir, runs[0].dir, 'x.npy'));
+    expect(batch.subarray(4 + headLength, 4 + headLength + index[0].size).equals(onDisk)).toBe(true);
   });
 
   it('shows one tile per run, sorted by window width, each captioned with the xj of its report.json', async () => {

@@ -1,4 +1,4 @@
-import { createReadStream, existsSync, readdirSync, realpathSync, statSync } from 'node:fs';
+import { createReadStream, existsSync, readdirSync, readFileSync, realpathSync, statSync } from 'node:fs';
 import { createServer, type IncomingMessage, type Server, type ServerResponse } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { extname, join, relative, resolve, sep } from 'node:path';
@@ -9,6 +9,9 @@ import { extname, join, relative, resolve, sep } from 'node:path';
  *   /data/…      files of the opened run or sweep folder (read-only, never outside it)
  *   /api/source  what is open: { label, recipe }
  *   /api/list    paths of the report.json and sweep.json files below the folder
+ *   /api/files?p=…&p=…  several files of the folder in one response (see sendBatch): a
+ *                sweep's runs are many small files, and one request each costs more than
+ *                the bytes
  *   /recipe.json the recipe given with --recipe, for the live mode
  */
 export interface ViewServerOptions {
@@ -99,6 +102,52 @@ function sendFile(res: ServerResponse, path: string, cache: boolean): void {
   createReadStream(path).on('error', () => res.destroy()).pipe(res);
 }
 
+/** Most files one batch request may ask for. */
+const BATCH_LIMIT = 64;
+
+/**
+ * A batch of files: a little-endian u32 byte length, a JSON index of
+ * [{ path, size } | { path, error }] in the order asked, then the files' bytes one after
+ * another, each padded to a multiple of 8 bytes so typed arrays can view them in place.
+ */
+function sendBatch(res: ServerResponse, dataDir: string, paths: string[]): void {
+  if (paths.length === 0 || paths.length > BATCH_LIMIT) {
+    send(res, 400, `ask for 1 to ${BATCH_LIMIT} files`);
+    return;
+  }
+  const index: ({ path: string; size: number } | { path: string; error: string })[] = [];
+  const bodies: Buffer[] = [];
+  for (const path of paths) {
+    const file = resolveInside(dataDir, path);
+    if (file === null) {
+      index.push({ path, error: 'outside the opened folder' });
+      continue;
+    }
+    try {
+      if (!statSync(file).isFile()) throw new Error('not a file');
+      const body = readFileSync(file);
+      index.push({ path, size: body.length });
+      bodies.push(body);
+      const pad = (8 - (body.length % 8)) % 8;
+      if (pad) bodies.push(Buffer.alloc(pad));
+    } catch {
+      index.push({ path, error: 'not found' });
+    }
+  }
+  let head = Buffer.from(JSON.stringify(index));
+  // Pad the index so the first file starts on a multiple of 8 too.
+  const headPad = (8 - ((4 + head.length) % 8)) % 8;
+  head = Buffer.concat([head, Buffer.from(' '.repeat(headPad))]);
+  const length = Buffer.alloc(4);
+  length.writeUInt32LE(head.length, 0);
+  const total = 4 + head.length + bodies.reduce((n, b) => n + b.length, 0);
+  res.writeHead(200, { 'content-type': 'application/octet-stream', 'content-length': total, 'cache-control': 'no-store', 'x-content-type-options': 'nosniff' });
+  res.write(length);
+  res.write(head);
+  for (const b of bodies) res.write(b);
+  res.end();
+}
+
 export function handler(options: ViewServerOptions) {
   const dataDir = resolve(options.dataDir);
   const viewerDir = resolve(options.viewerDir);
@@ -113,6 +162,8 @@ export function handler(options: ViewServerOptions) {
       send(res, 200, JSON.stringify({ label: options.dataDir, recipe: Boolean(options.recipePath) }), TYPES['.json']);
     } else if (path === '/api/list') {
       send(res, 200, JSON.stringify(listResults(dataDir)), TYPES['.json']);
+    } else if (path === '/api/files') {
+      sendBatch(res, dataDir, url.searchParams.getAll('p'));
     } else if (path === '/recipe.json') {
       if (options.recipePath) sendFile(res, resolve(options.recipePath), false);
       else send(res, 404, 'no recipe given (edgewise view DIR --recipe FILE)');

@@ -70,7 +70,7 @@ async function start(): Promise<void> {
       console.warn('recipe.json', e);
     }
   }
-  const source: FileSource = new HttpSource(served.label, 'data/', 'api/list');
+  const source: FileSource = new HttpSource(served.label, 'data/', 'api/list', 'api/files');
   await app.open(source);
 }
 
