@@ -93,6 +93,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
   const started = performance.now();
   const mine = matrix.runs.filter((r) => inShard(r.id, shard));
   const stem = sweepStem(shard);
+  const bundle = workerBundle();
   mkdirSync(out, { recursive: true });
   removeStaleTemps(out, [`${stem}.csv`, `${stem}.json`]);
 
@@ -131,7 +132,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
   let abandoning = false;
   const warnings: string[] = [];
   const progress = progressReporter(options.quiet ? null : process.stderr, 'sweep');
-  const pool = toDo.length > 0 ? new WorkerPool(Math.min(options.jobs, toDo.length), workerBundle()) : null;
+  const pool = toDo.length > 0 ? new WorkerPool(Math.min(options.jobs, toDo.length), bundle) : null;
   const report = () => progress.update(
     toDo.length === 0 ? 1 : (finished + (pool?.runningFraction() ?? 0)) / toDo.length,
     `${reused + finished}/${mine.length} runs, ${failed} failed`,

@@ -1,0 +1,81 @@
+/**
+ * Sweep benchmark (not a test): wall time of the same width sweep at 1 and at 2 jobs, and the
+ * parallel efficiency T1 / (2·T2). Runs the real binary, as a user would.
+ *
+ *   npx tsx test/bench/sweep.bench.ts [repeats]
+ *
+ * Each figure is the best of `repeats` (default 3): on a machine shared with other work the
+ * best time is the one least disturbed. "In-sweep" is the time the sweep reports itself (from
+ * reading the recipe to the last file), without Node's start-up. Beside it, the same figure for
+ * a bare arithmetic loop in 1 and 2 threads says how much of a second core the machine gave at
+ * that moment: the sweep cannot do better than that.
+ */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { Worker } from 'node:worker_threads';
+
+const BIN = resolve(import.meta.dirname, '..', '..', 'packages', 'cli', 'bin', 'edgewise.mjs');
+const repeats = Number(process.argv[2] ?? 3);
+
+// The demo base diffusion (examples/base-resistor.json) over 16 window widths.
+const recipe = {
+  title: 'base diffusion for a test resistor (demo scenario, invented), width sweep',
+  substrate: { dopant: 'P', concentrationCm3: 1e15 },
+  crossSection: { widthUm: 24 },
+  mask: { windows: [[8, 16]] },
+  steps: [
+    { kind: 'predeposition', dopant: 'B', surfaceConcentrationCm3: 1e20, temperatureC: 950, minutes: 30 },
+    { kind: 'drive-in', temperatureC: 1100, minutes: 60 },
+  ],
+};
+const WIDTHS = '1:1:16';
+const RUNS = 16;
+
+const dir = mkdtempSync(join(tmpdir(), 'edgewise-sweep-bench-'));
+const recipePath = join(dir, 'recipe.json');
+writeFileSync(recipePath, JSON.stringify(recipe, null, 2));
+
+function sweep(jobs: number, out: string): { wall: number; inSweep: number } {
+  rmSync(out, { recursive: true, force: true });
+  const t0 = performance.now();
+  const r = spawnSync(process.execPath, [BIN, 'sweep', recipePath, '--widths', WIDTHS, '--jobs', String(jobs), '--out', out], { encoding: 'utf8' });
+  const wall = (performance.now() - t0) / 1000;
+  if (r.status !== 0) throw new Error(`sweep --jobs ${jobs} exited ${r.status}: ${r.stderr}`);
+  const reported = /; ([\d.]+) s with \d+ workers?/.exec(r.stderr);
+  return { wall, inSweep: reported ? Number(reported[1]) : NaN };
+}
+
+/** Wall time of `threads` threads each running the same arithmetic loop, s. */
+async function loop(threads: number): Promise<number> {
+  const code = "let x = 0; for (let i = 0; i < 3e8; i++) x += Math.sqrt(i); require('node:worker_threads').parentPort.postMessage(x);";
+  const t0 = performance.now();
+  await Promise.all(Array.from({ length: threads }, () => new Promise((done) => new Worker(code, { eval: true }).once('message', done))));
+  return (performance.now() - t0) / 1000;
+}
+
+// Once to build the bundle, so that no timed launch pays for it.
+sweep(1, join(dir, 'warm'));
+
+const best = { 1: { wall: Infinity, inSweep: Infinity }, 2: { wall: Infinity, inSweep: Infinity } };
+const bare = { 1: Infinity, 2: Infinity };
+for (let k = 0; k < repeats; k++) {
+  bare[1] = Math.min(bare[1], await loop(1));
+  bare[2] = Math.min(bare[2], await loop(2));
+  for (const jobs of [1, 2] as const) {
+    const t = sweep(jobs, join(dir, `jobs-${jobs}`));
+    best[jobs].wall = Math.min(best[jobs].wall, t.wall);
+    best[jobs].inSweep = Math.min(best[jobs].inSweep, t.inSweep);
+  }
+}
+rmSync(dir, { recursive: true, force: true });
+
+const efficiency = (t1: number, t2: number) => `${((100 * t1) / (2 * t2)).toFixed(0)} %`;
+console.log(`sweep benchmark: ${RUNS} runs (widths ${WIDTHS} µm, default error bars), best of ${repeats}; ` +
+  `${availableParallelism()} cores, load average ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
+console.log(`  wall, 1 job    ${best[1].wall.toFixed(2)} s   (${((best[1].inSweep / RUNS) * 1000).toFixed(0)} ms per run in the sweep)`);
+console.log(`  wall, 2 jobs   ${best[2].wall.toFixed(2)} s`);
+console.log(`  in-sweep       ${best[1].inSweep.toFixed(2)} s / ${best[2].inSweep.toFixed(2)} s`);
+console.log(`  parallel efficiency T1/(2·T2): wall ${efficiency(best[1].wall, best[2].wall)}, in-sweep ${efficiency(best[1].inSweep, best[2].inSweep)} (target ≥ 80 %)`);
+console.log(`  the machine meanwhile, a bare loop in 1 and 2 threads: ${bare[1].toFixed(2)} s / ${bare[2].toFixed(2)} s, efficiency ${efficiency(bare[1], bare[2])}`);
