@@ -96,6 +96,7 @@ export class App {
     this.make(side, 'div', 'colour-bar').id = 'colour-bar';
     this.make(side, 'div', 'scale-note').id = 'scale-note';
     this.make(side, 'div', 'plot').id = 'plot';
+    side.append(document.getElementById('panel')!);
     this.gui = new GUI({ container: document.getElementById('panel')!, title: 'display', width: 300 });
     this.buildPanel();
     this.liveFolder = this.gui.addFolder('live re-run');
@@ -416,7 +417,6 @@ export class App {
     head.className = 'caption-head';
     const values = Object.entries(run.values).map(([k, v]) => `${k} ${fmtValue(v)}`).join(' · ');
     head.textContent = run.id === LIVE_ID ? 'live re-run' : values || run.report.title || run.id;
-    const body = document.createElement('div');
     const width = windowWidthUm(run.report);
     const part = (cls: string, label: string, value: string, um?: number | null) => {
       const s = document.createElement('span');
@@ -428,14 +428,19 @@ export class App {
     const errors = (w as { errors?: Record<string, number> } | undefined)?.errors ?? {};
     const pm = (key: string) => (typeof errors[key] === 'number' ? ` ± ${errors[key].toFixed(3)}` : '');
     const lateralErr = typeof errors.lateralLeftUm === 'number' ? ` (± ${Math.max(errors.lateralLeftUm, errors.lateralRightUm ?? 0).toFixed(3)})` : '';
-    const line2 = document.createElement('div');
-    body.append(
-      part('window', 'window', `${fmtUm(width, 2)} µm`, width),
-      ' · ',
-      part('xj', 'xj', `${fmtUm(w?.junctionDepthUm)}${pm('junctionDepthUm')} µm`, w?.junctionDepthUm),
-    );
-    line2.append(part('lateral', 'lateral', `${fmtUm(w?.lateralLeftUm)} | ${fmtUm(w?.lateralRightUm)} µm${lateralErr}`, w?.lateralLeftUm));
-    div.append(head, body, line2);
+    const line = (...parts: HTMLElement[]) => {
+      const d = document.createElement('div');
+      d.append(...parts);
+      return d;
+    };
+    const lines = [
+      line(part('window', 'window', `${fmtUm(width, 2)} µm`, width)),
+      line(part('xj', 'xj', `${fmtUm(w?.junctionDepthUm)}${pm('junctionDepthUm')} µm`, w?.junctionDepthUm)),
+      line(part('lateral', 'lateral', `${fmtUm(w?.lateralLeftUm)} | ${fmtUm(w?.lateralRightUm)} µm`, w?.lateralLeftUm)),
+    ];
+    div.title = `${head.textContent}\nwindow ${fmtUm(width, 3)} µm\njunction depth ${fmtUm(w?.junctionDepthUm)}${pm('junctionDepthUm')} µm\n` +
+      `lateral encroachment, left | right: ${fmtUm(w?.lateralLeftUm)} | ${fmtUm(w?.lateralRightUm)} µm${lateralErr}`;
+    div.append(head, ...lines);
     return div;
   }
 

@@ -16,7 +16,7 @@ export const MASK_BAND_PX = 7;
 const BAND = MASK_BAND_PX + 1;
 
 /** Room around each tile's plot, CSS px: axis labels left and below, the caption under them. */
-export const MARGIN = { left: 42, right: 10, top: 14, bottom: 64 };
+export const MARGIN = { left: 42, right: 10, top: 14, bottom: 76 };
 
 export interface GridLayout {
   columns: number;
@@ -86,7 +86,7 @@ export function focusPlotRect(area: { width: number; height: number }) {
     left: MARGIN.left + 8,
     top: MARGIN.top + 8,
     width: Math.max(10, area.width - MARGIN.left - MARGIN.right - 16),
-    height: Math.max(10, area.height - MARGIN.top - 34 - 16),
+    height: Math.max(10, area.height - MARGIN.top - 90),
   };
 }
 

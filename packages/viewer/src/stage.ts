@@ -152,8 +152,8 @@ function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: numbe
   ctx.lineTo(px(xMax), axisY);
   ctx.moveTo(axisX, py(zMin));
   ctx.lineTo(axisX, py(zMax));
-  const xt = niceTicks(xMin, xMax, Math.max(2, Math.floor((px(xMax) - px(xMin)) / 60)));
-  const zt = niceTicks(zMin, zMax, Math.max(2, Math.floor((py(zMax) - py(zMin)) / 28)));
+  const xt = niceTicks(xMin, xMax, Math.max(2, Math.floor((px(xMax) - px(xMin)) / 90)));
+  const zt = niceTicks(zMin, zMax, Math.max(2, Math.floor((py(zMax) - py(zMin)) / 40)));
   for (const x of xt.values) {
     ctx.moveTo(Math.round(px(x)) + 0.5, axisY);
     ctx.lineTo(Math.round(px(x)) + 0.5, axisY + 4);
