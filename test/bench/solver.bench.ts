@@ -63,10 +63,28 @@ for (const refine of [0.5, 1, 2]) {
     (refine === 1 ? '   ← default mesh' : ''));
 }
 
+console.log('\nNonlinear (charged-defect model, boron at p/ni ≈ 8) against linear, on the same mesh');
+{
+  // The nonlinear profile is deeper: both run on the mesh planned for it.
+  const nonlinearPlan = planRecipe(parseRecipe(referenceRecipe({}, {}, 'charged-defect')));
+  const linearPlan = { ...planRecipe(parseRecipe(referenceRecipe())), mesh: nonlinearPlan.mesh, mask: nonlinearPlan.mask };
+  const lin = best(5, () => simulate(linearPlan));
+  const non = best(5, () => simulate(nonlinearPlan));
+  const steps = (r: { value: ReturnType<typeof simulate> }) => r.value.stepRecords.reduce((n, s) => n + s.timeSteps, 0);
+  const points = linearPlan.mesh.nx * linearPlan.mesh.nz;
+  const per = (r: { ms: number }, n: number) => ((r.ms * 1e6) / (n * points)).toFixed(1);
+  console.log(`  mesh ${linearPlan.mesh.nx} × ${linearPlan.mesh.nz}: linear ${lin.ms.toFixed(1)} ms (${steps(lin)} steps, ${per(lin, steps(lin))} ns/point/step), ` +
+    `nonlinear ${non.ms.toFixed(1)} ms (${steps(non)} steps, ${per(non, steps(non))} ns/point/step): ${(non.ms / lin.ms).toFixed(2)}× the linear time`);
+  const xj = (sim: ReturnType<typeof simulate>) => analyze(sim).report.windows[0].junctionDepthUm!;
+  console.log(`  xj linear ${xj(lin.value).toFixed(4)} µm, nonlinear ${xj(non.value).toFixed(4)} µm`);
+}
+
 const dir = mkdtempSync(join(tmpdir(), 'edgewise-bench-'));
 const recipePath = join(dir, 'reference.json');
 writeFileSync(recipePath, JSON.stringify(referenceRecipe()));
 const cli = join(process.cwd(), 'packages', 'cli', 'bin', 'edgewise.mjs');
 execFileSync(process.execPath, [cli, 'run', recipePath, '--out', join(dir, 'out'), '--quiet']);
-const whole = best(5, () => execFileSync(process.execPath, [cli, 'run', recipePath, '--out', join(dir, 'out'), '--quiet']));
-console.log(`\nWhole CLI process (node start, read, solve, write files): ${whole.ms.toFixed(0)} ms (min of 5)`);
+for (const [label, extra] of [['with error bars (two coarser solves)', []], ['without error bars (--error-solves 0)', ['--error-solves', '0']]] as const) {
+  const whole = best(5, () => execFileSync(process.execPath, [cli, 'run', recipePath, '--out', join(dir, 'out'), '--quiet', ...extra]));
+  console.log(`${label === 'with error bars (two coarser solves)' ? '\n' : ''}Whole CLI process on the reference case, ${label}: ${whole.ms.toFixed(0)} ms (min of 5)`);
+}

@@ -58,6 +58,7 @@ export interface Plan {
   thermalBudgetUm2: Record<string, number>;
   /** the 1D junction-depth estimate the mesh was sized from, µm */
   reachUm: number;
+  limits: PlanLimits;
   warnings: string[];
 }
 
@@ -100,9 +101,12 @@ export function overStep(step: StepPlan, f: (temperatureC: number) => number, t0
 export interface PlanLimits {
   /** largest number of mesh points accepted (memory ∝ points) */
   maxMeshPoints: number;
+  /** largest mesh points × time steps accepted (solve time ∝ it: 15–60 ns each on one core here) */
+  maxPointSteps: number;
 }
 
-export const DEFAULT_LIMITS: PlanLimits = { maxMeshPoints: 4_000_000 };
+/** 4e6 points is about 250 MiB of fields; 1e10 point-steps is a few minutes of solving. */
+export const DEFAULT_LIMITS: PlanLimits = { maxMeshPoints: 4_000_000, maxPointSteps: 1e10 };
 
 /**
  * Default mesh, where R is the 1D junction-depth estimate: spacing R/80 down to 1.3·R below
@@ -114,8 +118,10 @@ export const DEFAULT_LIMITS: PlanLimits = { maxMeshPoints: 4_000_000 };
 const CELLS_PER_REACH_Z = 80;
 const CELLS_PER_REACH_X = 40;
 const FINE_REACH = 1.3;
-/** Cells per diffusion length of the shortest predeposition, at the surface and the edges. */
+/** Cells per diffusion length of a short predeposition, at the surface and the edges. */
 const CELLS_PER_SOURCE_LENGTH = 16;
+/** A predeposition is short when its ∫D dt is under this fraction of the species' total. */
+const SHORT_SOURCE = 0.25;
 const GRADE = 0.15;
 /**
  * Ratio of successive time steps. Peaceman–Rachford's error in xj goes as (Δt/t)², measured
@@ -316,7 +322,8 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
       const length = Math.sqrt(budget);
       reach = 2 * length * erfcinv(Math.min(ratio, 0.5));
       depthNeed = Math.max(depthNeed, 2 * length * erfcinv(Math.min(0.1, BOTTOM_FRACTION * ratio)));
-      if (st.kind === 'predeposition' && st.seconds > 0) {
+      // Only a short predeposition inside a longer recipe needs its own finer layer.
+      if (st.kind === 'predeposition' && st.seconds > 0 && st.budgetUm2[sp.name] < SHORT_SOURCE * budget) {
         const own = Math.sqrt(sp.model === 'charged-defect'
           ? overStep(st, (t) => diffusivityAt(sp.dopant, t, sp.type === 'donor' ? peak : -peak, sp.fieldEnhancement))
           : st.budgetUm2[sp.name]);
@@ -389,7 +396,7 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
     substrate: { dopant: recipe.substrate.dopant, type: substrateDopant.type, concentrationCm3: background },
     species, steps, mesh, mask,
     numerics: { stepGrowth: recipe.numerics?.stepGrowth ?? DEFAULT_STEP_GROWTH, startupSteps: recipe.numerics?.startupSteps ?? 3 },
-    thermalBudgetUm2, reachUm, warnings,
+    thermalBudgetUm2, reachUm, limits, warnings,
   };
 }
 

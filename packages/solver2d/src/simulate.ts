@@ -1,4 +1,5 @@
 import { AdiStepper } from './adi.ts';
+import { RecipeError } from './recipe.ts';
 import { componentsAt, diffusivityAt, intrinsicDiffusivity, type ComponentDiffusivities } from './dopants.ts';
 import { addImplant } from './implant.ts';
 import { intrinsicCarriersCm3 } from './intrinsic.ts';
@@ -167,15 +168,6 @@ function sourcePeaks(plan: Plan): Record<string, number> {
 export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation {
   const { mesh, mask, species, steps, numerics } = plan;
   const cells = mesh.nx * mesh.nz;
-  const stepper = new AdiStepper(mesh, mask);
-  const concentration: Record<string, Float64Array> = {};
-  const entered: Record<string, number> = {};
-  for (const s of species) {
-    concentration[s.name] = new Float64Array(cells);
-    entered[s.name] = 0;
-  }
-  const nonlinear = species.filter((s) => s.model === 'charged-defect');
-  const coupled = nonlinear.length > 0 ? new CoupledDiffusivity(plan, cells) : null;
   let hFine = Infinity;
   for (let i = 0; i < mesh.nx; i++) hFine = Math.min(hFine, mesh.dx[i]);
   for (let j = 1; j < mesh.nz; j++) hFine = Math.min(hFine, mesh.z[j] - mesh.z[j - 1]);
@@ -192,6 +184,23 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
     return schedule;
   });
   const total = schedules.reduce((n, s) => n + s.length, 0);
+  // Check the work before allocating any field.
+  const work = total * cells;
+  if (work > plan.limits.maxPointSteps) {
+    // About 30 ns a point-step on one core of the 2-core machine this was measured on.
+    throw new RecipeError('numerics', `would take ${total} time steps on ${cells} mesh points (${work.toExponential(2)} point-steps, ` +
+      `about ${Math.ceil((work * 3e-8) / 60)} min on one core), above the limit of ${plan.limits.maxPointSteps.toExponential(2)}; ` +
+      'lower mesh.refine or raise numerics.stepGrowth, or raise the limit');
+  }
+  const stepper = new AdiStepper(mesh, mask);
+  const concentration: Record<string, Float64Array> = {};
+  const entered: Record<string, number> = {};
+  for (const s of species) {
+    concentration[s.name] = new Float64Array(cells);
+    entered[s.name] = 0;
+  }
+  const nonlinear = species.filter((s) => s.model === 'charged-defect');
+  const coupled = nonlinear.length > 0 ? new CoupledDiffusivity(plan, cells) : null;
   let done = 0;
   const stepRecords: StepRecord[] = [];
   const present: SpeciesPlan[] = [];
@@ -276,6 +285,7 @@ class CoupledDiffusivity {
   private readonly hasPrevious = new Set<string>();
   private readonly net: Float64Array;
   private readonly ratio: Float64Array;
+  private readonly inverse: Float64Array;
   private readonly enhancement: Float64Array;
   private readonly nu: Float64Array;
 
@@ -283,6 +293,7 @@ class CoupledDiffusivity {
     for (const s of plan.species) this.previous[s.name] = new Float64Array(cells);
     this.net = new Float64Array(cells);
     this.ratio = new Float64Array(cells);
+    this.inverse = new Float64Array(cells);
     this.enhancement = new Float64Array(cells);
     this.nu = new Float64Array(cells);
   }
@@ -301,13 +312,13 @@ class CoupledDiffusivity {
       addExtrapolated(net, concentration[s.name], this.previous[s.name], w, s.type === 'donor' ? 1 : -1);
       this.hasPrevious.add(s.name);
     }
-    carrierRatios(net, ni, this.ratio, this.enhancement);
+    carrierRatios(net, ni, this.ratio, this.inverse, this.enhancement);
   }
 
   /** ν = D·τ at every node for one species, from its term budgets. Overwrites the last result. */
   nodeBudgets(s: SpeciesPlan, b: ComponentDiffusivities): Float64Array {
     if (s.type === 'donor') donorBudgets(this.nu, this.ratio, this.enhancement, this.net, b.neutral, b.single, b.double, s.fieldEnhancement);
-    else acceptorBudgets(this.nu, this.ratio, this.enhancement, this.net, b.neutral, b.single, s.fieldEnhancement);
+    else acceptorBudgets(this.nu, this.inverse, this.enhancement, this.net, b.neutral, b.single, s.fieldEnhancement);
     return this.nu;
   }
 }
@@ -325,12 +336,15 @@ function addExtrapolated(net: Float64Array, c: Float64Array, prev: Float64Array,
 }
 
 /** n/ni from neutrality (see intrinsic.ts) and the field factor 1 + |N|/√(N² + 4ni²). */
-function carrierRatios(net: Float64Array, ni: number, ratio: Float64Array, enhancement: Float64Array): void {
+function carrierRatios(net: Float64Array, ni: number, ratio: Float64Array, inverse: Float64Array, enhancement: Float64Array): void {
   const twoNi = 2 * ni;
   for (let k = 0; k < net.length; k++) {
     const u = net[k] / twoNi;
     const root = Math.sqrt(u * u + 1);
+    // n/ni = u + √(u² + 1) and p/ni = √(u² + 1) − u (their product is 1); each form loses
+    // digits where u is large of the other sign, so the other is taken as the reciprocal.
     ratio[k] = u >= 0 ? u + root : 1 / (root - u);
+    inverse[k] = u >= 0 ? 1 / (u + root) : root - u;
     const a = u < 0 ? -u : u;
     enhancement[k] = 1 + a / root;
   }
@@ -345,11 +359,11 @@ function donorBudgets(nu: Float64Array, ratio: Float64Array, enhancement: Float6
   }
 }
 
-function acceptorBudgets(nu: Float64Array, ratio: Float64Array, enhancement: Float64Array, net: Float64Array,
+function acceptorBudgets(nu: Float64Array, holes: Float64Array, enhancement: Float64Array, net: Float64Array,
                          neutral: number, single: number, field: boolean): void {
   for (let k = 0; k < nu.length; k++) {
     const h = field && net[k] < 0 ? enhancement[k] : 1;
-    nu[k] = (neutral + single / ratio[k]) * h;
+    nu[k] = (neutral + single * holes[k]) * h;
   }
 }
 
