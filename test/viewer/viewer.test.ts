@@ -1,9 +1,10 @@
+import { execFileSync } from 'node:child_process';
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
-  ARTIFACTS, bilinear, buildViewer, cliRun, stagePixels, launchChromium, makeWidthSweep, readNpy, readReport,
+  ARTIFACTS, bilinear, buildViewer, CLI, cliRun, REPO, stagePixels, launchChromium, makeWidthSweep, readNpy, readReport,
   recipeWithWindow, startView, tempDir, waitForTiles, type SweepRun, type ViewServer,
 } from './support.ts';
 
@@ -239,6 +240,49 @@ describe('edgewise view on a sweep folder', () => {
     // three.js counts live geometries; each tile owns the same number (source: Tile's own buffers).
     const perTile = before.gpu.geometries / before.tiles.length;
     expect(after.gpu.geometries).toBe(perTile);
+  });
+});
+
+describe('other ways in', () => {
+  it('opens the files of a run dropped on the page', async () => {
+    const dir = join(work, 'dropped');
+    cliRun(recipeWithWindow(5), dir, join(work, '.recipes'));
+    const files = ['report.json', 'field.npy', 'x.npy', 'z.npy'].map((name) => ({ name, base64: readFileSync(join(dir, name)).toString('base64') }));
+    const other = await browser.context.newPage();
+    try {
+      await other.goto(server.url);
+      await waitForTiles(other);
+      await other.evaluate(async (list) => {
+        const data = new DataTransfer();
+        for (const f of list) data.items.add(new File([Uint8Array.from(atob(f.base64), (c) => c.charCodeAt(0))], f.name));
+        window.edgewise.app.timing.firstFrameMs = null;
+        window.dispatchEvent(new DragEvent('drop', { dataTransfer: data, bubbles: true, cancelable: true }));
+      }, files);
+      await other.waitForFunction(() => window.edgewise.app.snapshot().tiles.length === 1 && window.edgewise.app.snapshot().timing.firstFrameMs !== null, null, { timeout: 30_000 });
+      const xj = await other.$eval('.caption .xj', (e) => Number((e as HTMLElement).dataset.um));
+      expect(xj).toBe(readReport(dir).windows[0].junctionDepthUm); // source: the dropped report.json
+    } finally {
+      await other.close();
+    }
+  });
+
+  it('opens a sweep folder written by edgewise sweep, and takes its recipe for the live mode', async () => {
+    const dir = join(work, 'real-sweep');
+    execFileSync(process.execPath, [CLI, 'sweep', join(REPO, 'examples', 'base-resistor.json'), '--widths', '2,6', '--out', dir, '--quiet'], { stdio: ['ignore', 'ignore', 'pipe'] });
+    const sweep = JSON.parse(readFileSync(join(dir, 'sweep.json'), 'utf8'));
+    const view = await startView(dir);
+    const other = await browser.context.newPage();
+    try {
+      await other.goto(view.url);
+      await waitForTiles(other);
+      const s = await other.evaluate(() => window.edgewise.app.snapshot());
+      expect(s.problems).toEqual([]);
+      expect(s.tiles.map((t) => t.dir)).toEqual(sweep.runs.map((r: { dir: string }) => r.dir)); // source: sweep.json, in width order
+      expect(s.recipe).toMatch(/recipe\.json/);
+    } finally {
+      await other.close();
+      await view.stop();
+    }
   });
 });
 

@@ -85,9 +85,9 @@ export function drawPlot(container: HTMLElement, points: PlotPoint[], width = 30
       g.append(dot);
     }
     svg.append(g);
-    const ly = height - 16 + k * 12 - 12;
-    svg.append(el('path', { d: `M${m.left},${ly + 16}h18`, stroke: s.colour, 'stroke-width': 1.5, 'stroke-dasharray': s.dash }));
-    svg.append(el('text', { x: m.left + 24, y: ly + 19, 'font-size': 10, fill: '#333' }, s.label));
+    const baseline = height - 18 + k * 13;
+    svg.append(el('path', { d: `M${m.left},${baseline - 3}h18`, stroke: s.colour, 'stroke-width': 1.5, 'stroke-dasharray': s.dash }));
+    svg.append(el('text', { x: m.left + 24, y: baseline, 'font-size': 10, fill: '#333' }, s.label));
   });
   container.append(svg);
 }
