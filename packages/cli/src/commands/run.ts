@@ -93,6 +93,15 @@ export function spacingTable(report: Report): string {
   );
 }
 
+/** How the error bars were scaled, in words an engineer can act on. */
+function orderNote(order: number | null): string {
+  if (order === null) return ', formal order 2';
+  const shown = order.toFixed(2);
+  return order >= 0.5
+    ? `, observed order ${shown}`
+    : `, observed order ${shown} (median): the coarser meshes are not yet converging, so bars use order 2 and safety factor 3 where the order is not credible`;
+}
+
 export function summary({ report }: Analysis, seconds: number, errorSeconds: number | null = null): string {
   const head = report.title ? `${report.title}\n` : '';
   const mesh = `mesh ${report.mesh.columns} × ${report.mesh.rows} (finest ${report.mesh.finestXUm} µm across, ${report.mesh.finestZUm} µm down), ` +
@@ -103,7 +112,7 @@ export function summary({ report }: Analysis, seconds: number, errorSeconds: num
   const budgets = Object.entries(report.thermalBudgetUm2).map(([name, b]) => `${name} ${fmtSci(b)} µm²`).join('; ');
   const errors = report.errorEstimate
     ? `error bars (±): ${report.errorEstimate.meshes.length - 1} coarser solve(s), meshes ${report.errorEstimate.meshes.map((m) => `${m.columns} × ${m.rows}`).join(', ')}` +
-      `${report.errorEstimate.observedOrder === null ? ', formal order 2' : `, observed order ${report.errorEstimate.observedOrder}`}` +
+      `${orderNote(report.errorEstimate.observedOrder)}` +
       `${errorSeconds === null ? '' : `, ${errorSeconds.toFixed(2)} s`}\n`
     : 'no error bars (--error-solves 0)\n';
   const spacing = report.spacings && report.spacings.length > 0 ? `\n\n${spacingTable(report)}` : '';
