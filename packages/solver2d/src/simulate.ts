@@ -75,8 +75,9 @@ const FIRST_STEP_MESH_NUMBER = 0.25;
  * value, 1.07 was 1.6 % off and 1.14 diverged; at s ≈ 560 the same accuracy took 1.0175.
  */
 const NONLINEAR_SPEEDUP = 1.5;
+/** Not below 1.01, which bounds a step at about 700 time steps whatever the speed-up. */
 function nonlinearGrowth(speedup: number): number {
-  return 1 + 0.4 / Math.sqrt(speedup);
+  return Math.max(1.01, 1 + 0.4 / Math.sqrt(speedup));
 }
 
 /** One time step: its interval within the process step and the temperature at its middle. */
@@ -158,7 +159,13 @@ function sourcePeaks(plan: Plan): Record<string, number> {
       peak = Math.max(sp.solubility(st.startC!) as number, sp.solubility(st.endC!) as number);
     }
     if (st.implant) peak = concentrationFromDose(st.implant.doseCm2, Math.sqrt(2 * Math.PI) * st.implant.straggleUm);
-    if (st.kind === 'film' && st.doseCm2 !== null) peak = concentrationFromDose(st.doseCm2, plan.mesh.dzVolume[0]);
+    if (st.kind === 'film' && st.doseCm2 !== null) {
+      // The placed layer is one cell thick only for an instant; what sets D for most of the
+      // next heat is its Gaussian surface value Q/√(π·∫D dt) over that heat.
+      const next = plan.steps.find((x) => x.index >= st.index && x.seconds > 0);
+      const budget = next ? next.budgetUm2[st.dopant] ?? 0 : 0;
+      peak = concentrationFromDose(st.doseCm2, budget > 0 ? Math.sqrt(Math.PI * budget) : plan.mesh.dzVolume[0]);
+    }
     peaks[st.dopant] = Math.max(peaks[st.dopant] ?? 0, peak);
   }
   return peaks;
