@@ -8,7 +8,7 @@ import { extname, join, relative, resolve, sep } from 'node:path';
  *   /            the built viewer (static files)
  *   /data/…      files of the opened run or sweep folder (read-only, never outside it)
  *   /api/source  what is open: { label, recipe }
- *   /api/list    paths of the report.json and sweep.json files below the folder
+ *   /api/list    paths of the report.json, sweep.json and recipe.json files below the folder
  *   /api/files?p=…&p=…  several files of the folder in one response (see sendBatch): a
  *                sweep's runs are many small files, and one request each costs more than
  *                the bytes
@@ -69,7 +69,7 @@ export function listResults(root: string): string[] {
       if (e.name.startsWith('.') || e.name === 'node_modules') continue;
       const p = join(dir, e.name);
       if (e.isDirectory() && depth < LIST_DEPTH) walk(p, depth + 1);
-      else if (e.isFile() && (e.name === 'report.json' || e.name === 'sweep.json')) out.push(relative(root, p).split(sep).join('/'));
+      else if (e.isFile() && (e.name === 'report.json' || e.name === 'sweep.json' || e.name === 'recipe.json')) out.push(relative(root, p).split(sep).join('/'));
     }
   };
   walk(root, 0);

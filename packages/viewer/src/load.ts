@@ -194,8 +194,10 @@ async function tryRead(source: FileSource, path: string): Promise<ArrayBuffer | 
 }
 
 async function loadRecipe(source: FileSource, dirs: string[], problems: Problem[]): Promise<unknown> {
+  const listed = source.has ? null : await source.list().catch(() => null);
   for (const dir of ['', ...dirs]) {
     const file = join(dir, 'recipe.json');
+    if (listed && !listed.includes(file)) continue;
     try {
       const buffer = await tryRead(source, file);
       if (buffer) return decodeJson(file, buffer);

@@ -166,6 +166,10 @@ function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: numbe
   ctx.textAlign = 'center';
   ctx.textBaseline = 'top';
   for (const x of xt.values) ctx.fillText(formatTick(x, xt), px(x), axisY + 5);
+  ctx.textAlign = 'left';
+  const last = xt.values[xt.values.length - 1];
+  const lastEnd = last === undefined ? -Infinity : px(last) + ctx.measureText(formatTick(last, xt)).width / 2;
+  ctx.fillText('µm', Math.max(px(xMax) + 6, lastEnd + 5), axisY + 5);
   ctx.textAlign = 'right';
   ctx.textBaseline = 'middle';
   for (const z of zt.values) ctx.fillText(formatTick(z, zt), axisX - 6, py(z));
