@@ -11,28 +11,29 @@ export interface CaseOptions {
   numerics?: Record<string, number>;
 }
 
-export function predepositionRecipe(o: CaseOptions & { cs: number; temperatureC: number; minutes: number }) {
+/** Everything but the steps: substrate, cross-section, mask, the test dopant, overrides. */
+function caseRecipe(o: CaseOptions, title: string) {
   return {
-    title: 'test: constant source (invented)',
+    title,
     substrate: { dopant: 'P', concentrationCm3: o.background ?? 1e16 },
     crossSection: { widthUm: o.widthUm },
     mask: { windows: o.windows },
     dopants: { Q: TEST_DOPANT },
     ...(o.mesh ? { mesh: o.mesh } : {}),
     ...(o.numerics ? { numerics: o.numerics } : {}),
+  };
+}
+
+export function predepositionRecipe(o: CaseOptions & { cs: number; temperatureC: number; minutes: number }) {
+  return {
+    ...caseRecipe(o, 'test: constant source (invented)'),
     steps: [{ kind: 'predeposition', dopant: 'Q', surfaceConcentrationCm3: o.cs, temperatureC: o.temperatureC, minutes: o.minutes }],
   };
 }
 
 export function filmRecipe(o: CaseOptions & { dose: number; temperatureC: number; minutes: number }) {
   return {
-    title: 'test: film source then drive-in (invented)',
-    substrate: { dopant: 'P', concentrationCm3: o.background ?? 1e16 },
-    crossSection: { widthUm: o.widthUm },
-    mask: { windows: o.windows },
-    dopants: { Q: TEST_DOPANT },
-    ...(o.mesh ? { mesh: o.mesh } : {}),
-    ...(o.numerics ? { numerics: o.numerics } : {}),
+    ...caseRecipe(o, 'test: film source then drive-in (invented)'),
     steps: [
       { kind: 'film', dopant: 'Q', doseCm2: o.dose },
       { kind: 'drive-in', temperatureC: o.temperatureC, minutes: o.minutes },
