@@ -81,6 +81,9 @@ export function analyze(sim: Simulation): Analysis {
   const speciesGrids = Object.fromEntries(plan.species.map((s) => [s.name, wallPaddedGrid(mesh, sim.concentration[s.name])]));
 
   const warnings = [...plan.warnings];
+  const sorted = [...plan.mask.windows].sort((a, b) => a[0] - b[0]);
+  const leftLimit = (x0: number) => sorted.reduce((limit, w) => (w[1] < x0 ? Math.max(limit, w[1]) : limit), -Infinity);
+  const rightLimit = (x1: number) => sorted.reduce((limit, w) => (w[0] > x1 ? Math.min(limit, w[0]) : limit), Infinity);
   const windows: WindowReport[] = plan.mask.windows.map(([x0, x1]) => {
     const centre = 0.5 * (x0 + x1);
     const centreColumn = columnAt(grid, centre, column);
@@ -89,8 +92,10 @@ export function analyze(sim: Simulation): Analysis {
       warnings.push(`below the window [${x0}, ${x1}] µm the diffused region reaches the bottom of the cross-section (${rounded(mesh.depthUm, 4)} µm): the deepest junction is not inside it; give a larger crossSection.depthUm`);
     }
     const depth = depths.length > 0 ? depths[0] : null;
-    const lefts = surfaceCrossings(grid, centre, -1);
-    const rights = surfaceCrossings(grid, centre, 1);
+    // A crossing beyond the neighbouring window's near edge belongs to a merged region:
+    // there is no encroachment to report on that side (the spacing says "merged").
+    const lefts = surfaceCrossings(grid, centre, -1).filter((x) => x > leftLimit(x0));
+    const rights = surfaceCrossings(grid, centre, 1).filter((x) => x < rightLimit(x1));
     const stack = depths.map((d, k) => ({
       depthUm: rounded(d),
       lateralLeftUm: k < lefts.length ? rounded(x0 - lefts[k]) : null,
