@@ -65,9 +65,16 @@ function strict<T extends z.ZodRawShape>(shape: T) {
   });
 }
 
+/**
+ * Keys every JavaScript object inherits. A dopant named `toString` would be found in any
+ * lookup table (`table[name]`, `name in table`) without being in it, so none is a dopant name.
+ */
+const INHERITED_NAMES = new Set(Object.getOwnPropertyNames(Object.prototype));
+
 const dopantName = z
   .string({ error: explain('a dopant name (B, P, As, Sb or one defined under "dopants")') })
-  .regex(/^[A-Za-z][A-Za-z0-9_-]{0,31}$/, { error: explain('a dopant name of letters, digits, "_" or "-", starting with a letter, at most 32 long') });
+  .regex(/^[A-Za-z][A-Za-z0-9_-]{0,31}$/, { error: explain('a dopant name of letters, digits, "_" or "-", starting with a letter, at most 32 long') })
+  .refine((name) => !INHERITED_NAMES.has(name), { error: (iss) => `must not be ${JSON.stringify(iss.input)}: JavaScript reserves that name; choose another` });
 
 const concentration = num('cm^-3', 1e10, 1e22);
 const temperatureC = num('°C (the diffusivity tables cover this range)', TEMPERATURE_RANGE_C[0], TEMPERATURE_RANGE_C[1]);
@@ -147,7 +154,7 @@ const model = z.enum(DIFFUSION_MODELS, { error: explain(`one of ${DIFFUSION_MODE
  */
 const diffusion = strict({
   model: model.optional(),
-  species: z.record(z.string(), model, { error: explain('an object of dopant name → model') }).optional(),
+  species: z.record(dopantName, model, { error: explain('an object of dopant name → model') }).optional(),
   fieldEnhancement: z.boolean({ error: explain('true or false') }).optional(),
 });
 
@@ -204,8 +211,50 @@ function pathToField(path: readonly PropertyKey[]): string {
   return out || 'recipe';
 }
 
+/**
+ * Keys that name an object's prototype machinery. The schema would silently drop `__proto__`
+ * from a record (dopants, diffusion.species, sweep.set); a recipe never needs any of them, so
+ * each is refused by name, wherever it sits. The walk keeps its own stack, so a deeply
+ * nested value cannot overflow the call stack here.
+ */
+const RESERVED_KEYS = new Set(['__proto__', 'constructor', 'prototype']);
+
+interface Visit {
+  value: unknown;
+  key: PropertyKey | null;
+  parent: Visit | null;
+}
+
+function pathOf(visit: Visit): PropertyKey[] {
+  const path: PropertyKey[] = [];
+  for (let v: Visit | null = visit; v && v.key !== null; v = v.parent) path.push(v.key);
+  return path.reverse();
+}
+
+function checkReservedKeys(input: unknown): void {
+  const stack: Visit[] = [{ value: input, key: null, parent: null }];
+  // YAML aliases share a value between places (or make a cycle): each object is seen once.
+  const seen = new Set<object>();
+  while (stack.length > 0) {
+    const visit = stack.pop()!;
+    const { value } = visit;
+    if (value === null || typeof value !== 'object' || seen.has(value)) continue;
+    seen.add(value);
+    if (Array.isArray(value)) {
+      for (let k = value.length - 1; k >= 0; k--) stack.push({ value: value[k], key: k, parent: visit });
+      continue;
+    }
+    const keys = Object.keys(value);
+    for (const key of keys) {
+      if (RESERVED_KEYS.has(key)) throw new RecipeError(pathToField(pathOf(visit)), `unknown key ${JSON.stringify(key)} (JavaScript reserves it; no recipe key is named so)`);
+    }
+    for (let k = keys.length - 1; k >= 0; k--) stack.push({ value: (value as Record<string, unknown>)[keys[k]], key: keys[k], parent: visit });
+  }
+}
+
 /** Validates the shape of a recipe; cross-field rules are checked when it is planned. */
 export function parseRecipe(input: unknown): Recipe {
+  checkReservedKeys(input);
   const result = recipeSchema.safeParse(input);
   if (!result.success) {
     const issue = result.error.issues[0];
