@@ -440,7 +440,9 @@ function variableLine(src: Float64Array, dst: Float64Array, nu: Float64Array, n:
 /**
  * Four neighbouring lines of a variable-coefficient half step, their recurrences
  * interleaved (the division of each Thomas step would otherwise stall the next). Same
- * equations as `variableLine`; a held block is held at position 0 only.
+ * equations as `variableLine`; a held block is held at position 0 only. The fluxes
+ * across the five faces between and around the four lines are computed once and shared,
+ * and ν along each line is carried from one position to the next.
  */
 function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n: number, m: number, q: number,
                        gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
@@ -455,35 +457,46 @@ function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n
   const wa3 = half * hPrev[q + 3], wb3 = half * hNext[q + 3];
   let y0 = 0, y1 = 0, y2 = 0, y3 = 0;
   let p0 = 0, p1 = 0, p2 = 0, p3 = 0;
-  let v0 = nu[b0];
-  let v1 = nu[b1];
-  let v2 = nu[b2];
-  let v3 = nu[b3];
+  let v0 = nu[b0], n0 = v0;
+  let v1 = nu[b1], n1 = v1;
+  let v2 = nu[b2], n2 = v2;
+  let v3 = nu[b3], n3 = v3;
   for (let k = 0; k < n; k++) {
     const kn = k < n - 1 ? k + 1 : k;
     const gp = 0.5 * beta * gPrev[k];
     const gn = 0.5 * beta * gNext[k];
-    const sb = src[bb + k], sa = src[ba + k], nb = nu[bb + k], na = nu[ba + k];
-    const s0 = src[b0 + k], n0 = nu[b0 + k];
-    const s1 = src[b1 + k], n1 = nu[b1 + k];
-    const s2 = src[b2 + k], n2 = nu[b2 + k];
-    const s3 = src[b3 + k], n3 = nu[b3 + k];
+    const sb = src[bb + k], sa = src[ba + k];
+    const s0 = src[b0 + k], s1 = src[b1 + k], s2 = src[b2 + k], s3 = src[b3 + k];
+    // ν̄·(difference) across the faces below line 0, between the lines, above line 3
+    const f0 = (nu[bb + k] + n0) * (s0 - sb);
+    const f1 = (n0 + n1) * (s1 - s0);
+    const f2 = (n1 + n2) * (s2 - s1);
+    const f3 = (n2 + n3) * (s3 - s2);
+    const f4 = (n3 + nu[ba + k]) * (sa - s3);
+    const x0 = nu[b0 + kn];
     let lo0 = -gp * (v0 + n0);
-    let up0 = -gn * (n0 + nu[b0 + kn]);
-    let r0 = s0 + wa0 * (nb + n0) * (sb - s0) + wb0 * (n1 + n0) * (s1 - s0);
+    let up0 = -gn * (n0 + x0);
+    let r0 = s0 + wb0 * f1 - wa0 * f0;
     v0 = n0;
+    n0 = x0;
+    const x1 = nu[b1 + kn];
     let lo1 = -gp * (v1 + n1);
-    let up1 = -gn * (n1 + nu[b1 + kn]);
-    let r1 = s1 + wa1 * (n0 + n1) * (s0 - s1) + wb1 * (n2 + n1) * (s2 - s1);
+    let up1 = -gn * (n1 + x1);
+    let r1 = s1 + wb1 * f2 - wa1 * f1;
     v1 = n1;
+    n1 = x1;
+    const x2 = nu[b2 + kn];
     let lo2 = -gp * (v2 + n2);
-    let up2 = -gn * (n2 + nu[b2 + kn]);
-    let r2 = s2 + wa2 * (n1 + n2) * (s1 - s2) + wb2 * (n3 + n2) * (s3 - s2);
+    let up2 = -gn * (n2 + x2);
+    let r2 = s2 + wb2 * f3 - wa2 * f2;
     v2 = n2;
+    n2 = x2;
+    const x3 = nu[b3 + kn];
     let lo3 = -gp * (v3 + n3);
-    let up3 = -gn * (n3 + nu[b3 + kn]);
-    let r3 = s3 + wa3 * (n2 + n3) * (s2 - s3) + wb3 * (na + n3) * (sa - s3);
+    let up3 = -gn * (n3 + x3);
+    let r3 = s3 + wb3 * f4 - wa3 * f3;
     v3 = n3;
+    n3 = x3;
     if (heldFirst && k === 0) {
       lo0 = lo1 = lo2 = lo3 = 0;
       up0 = up1 = up2 = up3 = 0;
