@@ -33,6 +33,9 @@ export function formatPath(segments: readonly Segment[]): string {
   return out || 'recipe';
 }
 
+/** Names that would reach an object's prototype rather than a field of the recipe. */
+const RESERVED = new Set(['__proto__', 'constructor', 'prototype']);
+
 /** `name(.name|[index])*`; names are letters, digits, "_" and "-" (dopant names may hold "-"). */
 export function parsePath(text: string, label: string): Segment[] {
   const segments: Segment[] = [];
@@ -43,6 +46,7 @@ export function parsePath(text: string, label: string): Segment[] {
   while (rest.length > 0) {
     const m = token.exec(rest);
     if (!m) throw bad();
+    if (m[1] !== undefined && RESERVED.has(m[1])) throw new UsageError(`${label}: ${JSON.stringify(m[1])} cannot be part of a recipe path`);
     segments.push(m[1] !== undefined ? m[1] : Number(m[2]));
     rest = rest.slice(m[0].length);
   }
@@ -55,6 +59,10 @@ function typesOf(node: SchemaNode): string[] {
 
 function isNumeric(node: SchemaNode): boolean {
   return typesOf(node).some((t) => t === 'number' || t === 'integer');
+}
+
+function own<T>(record: Record<string, T> | undefined, key: string): T | undefined {
+  return record !== undefined && Object.hasOwn(record, key) ? record[key] : undefined;
 }
 
 function kindOf(value: unknown): string {
@@ -119,7 +127,7 @@ export function checkNumericPath(recipe: unknown, segments: readonly Segment[], 
       if (!typesOf(node).includes('object') || (value !== undefined && kindOf(value) !== 'object')) {
         throw fail(`${at} is not an object with named fields`);
       }
-      const child = node.properties?.[seg] ?? (typeof node.additionalProperties === 'object' ? node.additionalProperties : undefined);
+      const child = own(node.properties, seg) ?? (typeof node.additionalProperties === 'object' ? node.additionalProperties : undefined);
       if (!child || !holdsNumbers(child)) {
         const named = Object.entries(node.properties ?? {})
           .filter(([n, c]) => holdsNumbers(c) && !(k === 0 && n === 'sweep'))
@@ -129,7 +137,7 @@ export function checkNumericPath(recipe: unknown, segments: readonly Segment[], 
         throw fail(`${describeObject(at, value)} has no field ${JSON.stringify(seg)} that holds numbers (allowed: ${allowed.join(', ') || 'none'})`);
       }
       node = child;
-      value = value === undefined ? undefined : (value as Record<string, unknown>)[seg];
+      value = value === undefined ? undefined : own(value as Record<string, unknown>, seg);
     } else {
       if (!Array.isArray(value)) throw fail(value === undefined ? `${at} is not in the recipe, so ${at}[${seg}] cannot be set` : `${at} is not a list`);
       if (seg >= value.length) throw fail(`${at} has ${value.length} item${value.length === 1 ? '' : 's'} (indices 0 to ${value.length - 1})`);
@@ -151,7 +159,7 @@ export function setAt(target: Record<string, unknown>, segments: readonly Segmen
   let node: Record<string | number, unknown> = target;
   for (let k = 0; k < segments.length - 1; k++) {
     const seg = segments[k];
-    if (node[seg] === undefined) node[seg] = {};
+    if (!Object.hasOwn(node, seg)) node[seg] = {};
     node = node[seg] as Record<string | number, unknown>;
   }
   node[segments[segments.length - 1]] = value;
