@@ -1,15 +1,17 @@
 import GUI, { type Controller } from 'lil-gui';
 import { drawColourBar } from './colour-bar.ts';
-import { defaultRange, formatConcentration, type ColourRange } from './colour-scale.ts';
+import { defaultRange, type ColourRange } from './colour-scale.ts';
 import { DEFAULT_RECIPE } from './default-recipe.ts';
 import {
   fitFocus, focusView, layoutGrid, pan, zoomAbout, type FocusState, type GridLayout,
 } from './layout.ts';
 import { LiveRunner } from './live.ts';
 import { applyLiveFields, liveFields, type LiveField } from './live-params.ts';
-import { loadDataSet, windowWidthUm, type DataSet, type FileSource, type Problem, type RunData } from './load.ts';
+import { loadDataSet, type DataSet, type FileSource, type Problem, type RunData } from './load.ts';
 import { drawPlot, plotPoints } from './plot.ts';
-import { junctionSide, sampleField } from './sample.ts';
+import { captionElement } from './caption.ts';
+import { showReadout } from './readout.ts';
+import { sampleField } from './sample.ts';
 import { Stage } from './stage.ts';
 import { canvasToWorld, Tile, worldToCanvas, type TileStyle } from './tile.ts';
 
@@ -18,14 +20,6 @@ const LIVE_ID = 'live';
 
 function layerLabel(name: string): string {
   return name === NET ? '|net doping|' : name;
-}
-
-function fmtUm(v: number | null | undefined, digits = 3): string {
-  return typeof v === 'number' ? v.toFixed(digits) : '—';
-}
-
-function fmtValue(v: number | string): string {
-  return typeof v === 'number' ? String(Number(v.toPrecision(6))) : v;
 }
 
 type Mode = { kind: 'grid' } | { kind: 'focus'; tile: Tile; state: FocusState };
@@ -407,49 +401,12 @@ export class App {
     for (const w of waiters) w();
   }
 
-  private caption(tile: Tile): HTMLElement {
-    const { run } = tile;
-    const w = run.report.windows[0];
-    const div = document.createElement('div');
-    div.className = 'caption';
-    div.dataset.runId = run.id;
-    const head = document.createElement('div');
-    head.className = 'caption-head';
-    const values = Object.entries(run.values).map(([k, v]) => `${k} ${fmtValue(v)}`).join(' · ');
-    head.textContent = run.id === LIVE_ID ? 'live re-run' : values || run.report.title || run.id;
-    const width = windowWidthUm(run.report);
-    const part = (cls: string, label: string, value: string, um?: number | null) => {
-      const s = document.createElement('span');
-      s.className = cls;
-      s.textContent = `${label} ${value}`;
-      if (typeof um === 'number') s.dataset.um = String(um);
-      return s;
-    };
-    const errors = (w as { errors?: Record<string, number> } | undefined)?.errors ?? {};
-    const pm = (key: string) => (typeof errors[key] === 'number' ? ` ± ${errors[key].toFixed(3)}` : '');
-    const lateralErr = typeof errors.lateralLeftUm === 'number' ? ` (± ${Math.max(errors.lateralLeftUm, errors.lateralRightUm ?? 0).toFixed(3)})` : '';
-    const line = (...parts: HTMLElement[]) => {
-      const d = document.createElement('div');
-      d.append(...parts);
-      return d;
-    };
-    const lines = [
-      line(part('window', 'window', `${fmtUm(width, 2)} µm`, width)),
-      line(part('xj', 'xj', `${fmtUm(w?.junctionDepthUm)}${pm('junctionDepthUm')} µm`, w?.junctionDepthUm)),
-      line(part('lateral', 'lateral', `${fmtUm(w?.lateralLeftUm)} | ${fmtUm(w?.lateralRightUm)} µm`, w?.lateralLeftUm)),
-    ];
-    div.title = `${head.textContent}\nwindow ${fmtUm(width, 3)} µm\njunction depth ${fmtUm(w?.junctionDepthUm)}${pm('junctionDepthUm')} µm\n` +
-      `lateral encroachment, left | right: ${fmtUm(w?.lateralLeftUm)} | ${fmtUm(w?.lateralRightUm)} µm${lateralErr}`;
-    div.append(head, ...lines);
-    return div;
-  }
-
   private drawCaptions(visible: Tile[]): void {
     this.captions.replaceChildren();
     for (const t of visible) {
       const v = t.view;
       if (!v) continue;
-      const c = this.caption(t);
+      const c = captionElement(t.run, t.run.id === LIVE_ID);
       c.style.left = `${v.left}px`;
       c.style.top = `${Math.min(this.stage.height - 30, v.top + v.height + 17)}px`;
       c.style.maxWidth = `${Math.max(v.width, (this.grid?.cellWidth ?? 200) - 50)}px`;
@@ -541,30 +498,7 @@ export class App {
     const view = focusView(this.mode.state, { width: this.stage.width, height: this.stage.height });
     const [x, z] = canvasToWorld(view, px, py);
     const s = sampleField(tile.run.field, tile.run.layers.length, tile.grid, x, z);
-    this.readout.hidden = false;
-    this.readout.replaceChildren();
-    const row = (label: string, value: string, data?: Record<string, string>) => {
-      const d = document.createElement('div');
-      const l = document.createElement('span');
-      l.textContent = label;
-      const v = document.createElement('b');
-      v.textContent = value;
-      d.append(l, v);
-      if (data) Object.assign(d.dataset, data);
-      this.readout.append(d);
-    };
-    this.readout.dataset.xUm = String(x);
-    this.readout.dataset.zUm = String(z);
-    row('x', `${x.toFixed(4)} µm`, { quantity: 'x' });
-    row('z', `${z.toFixed(4)} µm`, { quantity: 'z' });
-    if (!s) {
-      row('', 'outside the cross-section');
-      return;
-    }
-    tile.run.layers.forEach((name, k) => {
-      row(name === NET ? 'net doping' : name, `${formatConcentration(s.values[k])} cm⁻³`, { layer: name, value: String(s.values[k]) });
-    });
-    row('side', junctionSide(s.values[0]), { quantity: 'side' });
+    showReadout(this.readout, tile.run.layers, x, z, s);
   }
 
   // ---- for the tests and the benchmark ----------------------------------------------
