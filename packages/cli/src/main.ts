@@ -23,6 +23,21 @@ function usage(): string {
   return ['usage:', ...Object.values(COMMANDS).map((c) => `  ${c.usage}`)].join('\n');
 }
 
+/**
+ * node:util parseArgs errors in one line: its messages run to three sentences on three lines
+ * ("Option '--out' argument is ambiguous.\nDid you forget …"); the first says what is wrong.
+ */
+export function parseArgsMessage(e: Error): string {
+  const code = (e as { code?: string }).code;
+  const option = /'(-[^' ]+)/.exec(e.message)?.[1];
+  if (option && code === 'ERR_PARSE_ARGS_UNKNOWN_OPTION') return `unknown option ${option}`;
+  if (option && /argument missing|is ambiguous/.test(e.message)) return `option ${option} needs a value; one that starts with "-" is written ${option}=-…`;
+  if (option && /does not take an argument/.test(e.message)) return `option ${option} takes no value`;
+  const first = e.message.split('\n')[0];
+  const sentence = /^(.*?[^.])\.(\s|$)/.exec(first)?.[1] ?? first;
+  return sentence.charAt(0).toLowerCase() + sentence.slice(1);
+}
+
 /** Runs one command; returns the exit code (0 ok, 2 bad input, 1 internal failure). */
 export async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
@@ -47,7 +62,7 @@ export async function main(argv: string[]): Promise<number> {
       return 2;
     }
     if (e instanceof TypeError && (e as { code?: string }).code?.startsWith('ERR_PARSE_ARGS')) {
-      process.stderr.write(`edgewise ${name}: ${e.message} (usage: ${command.usage})\n`);
+      process.stderr.write(`edgewise ${name}: ${parseArgsMessage(e)} (usage: ${command.usage})\n`);
       return 2;
     }
     if (e instanceof SolverError) {
