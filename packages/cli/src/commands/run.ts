@@ -3,11 +3,12 @@ import { parseArgs } from 'node:util';
 import { analyze, coarseReports, parseRecipe, planRecipe, simulate, withErrorBars, type Analysis, type Report } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
 import { fmtLength, fmtPlusMinus, fmtRatio, fmtSci, table } from '../format.ts';
+import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits, withLimitHint } from '../limits.ts';
 import { writeRunFolder } from '../output.ts';
 import { progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
 
-export const RUN_USAGE = 'edgewise run RECIPE [--out DIR] [--error-solves 0|1|2] [--quiet]';
+export const RUN_USAGE = `edgewise run RECIPE [--out DIR] [--error-solves 0|1|2] ${LIMITS_USAGE} [--quiet]`;
 
 /** Coarser solves for the error bars: 1 (mesh 2h, formal order) or 2 (2h and 4h, measured order). */
 const DEFAULT_ERROR_SOLVES = 2;
@@ -25,16 +26,17 @@ export function defaultOutFolder(recipePath: string): string {
 export function runCommand(args: string[]): number {
   const { values, positionals } = parseArgs({
     args, allowPositionals: true, strict: true,
-    options: { out: { type: 'string' }, 'error-solves': { type: 'string' }, quiet: { type: 'boolean', default: false } },
+    options: { out: { type: 'string' }, 'error-solves': { type: 'string' }, quiet: { type: 'boolean', default: false }, ...LIMIT_OPTIONS },
   });
   const errorSolves = parseErrorSolves(values['error-solves']);
+  const limits = parseLimits(values);
   if (positionals.length !== 1) throw new UsageError(`run takes one recipe file (usage: ${RUN_USAGE})`);
   const recipePath = positionals[0];
   const out = values.out ?? defaultOutFolder(recipePath);
   const started = performance.now();
-  const plan = planRecipe(parseRecipe(readRecipeFile(recipePath)));
+  const plan = withLimitHint(limits, () => planRecipe(parseRecipe(readRecipeFile(recipePath)), limits));
   const progress = progressReporter(values.quiet ? null : process.stderr, 'solving');
-  const sim = simulate(plan, { onProgress: (p) => progress.update(p.done / p.total) });
+  const sim = withLimitHint(limits, () => simulate(plan, { onProgress: (p) => progress.update(p.done / p.total) }));
   progress.done();
   const analysis = analyze(sim);
   const solved = performance.now();
@@ -42,7 +44,7 @@ export function runCommand(args: string[]): number {
     const coarse = progressReporter(values.quiet ? null : process.stderr, 'error bars');
     let level = 1;
     const reports = coarseReports(plan.recipe, {
-      levels: errorSolves, onLevel: (l) => { level = l; },
+      levels: errorSolves, limits, onLevel: (l) => { level = l; },
       onProgress: (p) => coarse.update((level - 1 + p.done / p.total) / errorSolves, `coarser solve ${level} of ${errorSolves}`),
     });
     coarse.done();
