@@ -187,20 +187,23 @@ export class AdiStepper {
 
   /**
    * The same step with D varying in space (concentration-dependent diffusion): `nu` holds
-   * ν = D·τ at every node (row-major, like `c`); a face takes the mean of its two nodes.
+   * ν = D·τ at every node (row-major, like `c`; `transposed`, if given, is the same values
+   * column-major, saving the transpose); a face takes the mean of its two nodes.
    * Lines are factorised one at a time since no two share a matrix.
    */
-  stepVariable(c: Float64Array, nu: Float64Array, scheme: Scheme, held: boolean, surfaceValue: number): number {
+  stepVariable(c: Float64Array, nu: Float64Array, scheme: Scheme, held: boolean, surfaceValue: number,
+               transposed: Float64Array | null = null): number {
     const { nx, nz, nuT, ax, cx, az, cz } = this;
     const pr = scheme === 'peaceman-rachford';
     const implicit = pr ? 0.5 : 1;
     const explicit = pr ? 0.5 : 0;
     if (held) this.savedRows.set(c.subarray(0, 2 * nx));
-    transpose(nu, nuT, nx, nz);
+    const nuColumns = transposed ?? nuT;
+    if (!transposed) transpose(nu, nuT, nx, nz);
     const rowHeld = held ? this.surfaceRowKind : this.noneHeldX;
     const columnHeld = held ? this.openColumnKind : this.sealedZKind;
     variableSweep(c, this.star, nu, nx, nz, ax, cx, az, cz, implicit, explicit, this.cpBlock, rowHeld, this.open, false, surfaceValue);
-    variableSweep(this.star, c, nuT, nz, nx, az, cz, ax, cx, implicit, explicit, this.cpBlock, columnHeld, this.zSweep.heldAlong, true, surfaceValue);
+    variableSweep(this.star, c, nuColumns, nz, nx, az, cz, ax, cx, implicit, explicit, this.cpBlock, columnHeld, this.zSweep.heldAlong, true, surfaceValue);
     return held ? this.inflowVariable(c, nu, pr) : 0;
   }
 

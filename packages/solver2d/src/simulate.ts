@@ -246,7 +246,8 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
         const c = concentration[s.name];
         const nu = componentBudgets(st, s, t0, t1);
         if (coupled && s.model === 'charged-defect') {
-          entered[s.name] += stepper.stepVariable(c, coupled.nodeBudgets(s, nu), scheme, isHeld, surface);
+          const node = coupled.nodeBudgets(s, nu);
+          entered[s.name] += stepper.stepVariable(c, node.nu, scheme, isHeld, surface, node.nuT);
         } else {
           entered[s.name] += stepper.step(c, nu.neutral + nu.single + nu.double, scheme, isHeld, surface);
         }
@@ -291,42 +292,41 @@ class CoupledDiffusivity {
   private readonly previous: Record<string, Float64Array> = {};
   private readonly hasPrevious = new Set<string>();
   private readonly net: Float64Array;
-  private readonly ratio: Float64Array;
-  private readonly inverse: Float64Array;
-  private readonly enhancement: Float64Array;
+  /** ν at the nodes, row-major and transposed, for the two sweeps */
   private readonly nu: Float64Array;
+  private readonly nuT: Float64Array;
+  private ni = 1;
 
   constructor(private readonly plan: Plan, cells: number) {
     for (const s of plan.species) this.previous[s.name] = new Float64Array(cells);
     this.net = new Float64Array(cells);
-    this.ratio = new Float64Array(cells);
-    this.inverse = new Float64Array(cells);
-    this.enhancement = new Float64Array(cells);
     this.nu = new Float64Array(cells);
+    this.nuT = new Float64Array(cells);
   }
 
   restart(): void {
     this.hasPrevious.clear();
   }
 
-  /** Builds n/ni and the field factor at the middle of the coming step; remembers Cⁿ. */
+  /** Net doping at the middle of the coming step; remembers Cⁿ. */
   prepare(concentration: Record<string, Float64Array>, present: readonly SpeciesPlan[], temperatureC: number, theta: number): void {
     const { net, plan } = this;
-    const ni = intrinsicCarriersCm3(temperatureC);
+    this.ni = intrinsicCarriersCm3(temperatureC);
     net.fill(plan.substrate.type === 'donor' ? plan.substrate.concentrationCm3 : -plan.substrate.concentrationCm3);
     for (const s of present) {
       const w = this.hasPrevious.has(s.name) ? theta : 0;
       addExtrapolated(net, concentration[s.name], this.previous[s.name], w, s.type === 'donor' ? 1 : -1);
       this.hasPrevious.add(s.name);
     }
-    carrierRatios(net, ni, this.ratio, this.inverse, this.enhancement);
   }
 
-  /** ν = D·τ at every node for one species, from its term budgets. Overwrites the last result. */
-  nodeBudgets(s: SpeciesPlan, b: ComponentDiffusivities): Float64Array {
-    if (s.type === 'donor') donorBudgets(this.nu, this.ratio, this.enhancement, this.net, b.neutral, b.single, b.double, s.fieldEnhancement);
-    else acceptorBudgets(this.nu, this.inverse, this.enhancement, this.net, b.neutral, b.single, s.fieldEnhancement);
-    return this.nu;
+  /** ν = D·τ at every node for one species from its term budgets, in both layouts. */
+  nodeBudgets(s: SpeciesPlan, b: ComponentDiffusivities): { nu: Float64Array; nuT: Float64Array } {
+    const { nx, nz } = this.plan.mesh;
+    const sign = s.type === 'donor' ? 1 : -1;
+    // An acceptor sees p/ni, which is n/ni with the sign of the net doping turned over.
+    nodeBudgets(this.nu, this.nuT, this.net, nx, nz, this.ni, sign, b.neutral, b.single, s.type === 'donor' ? b.double : 0, s.fieldEnhancement);
+    return { nu: this.nu, nuT: this.nuT };
   }
 }
 
@@ -342,35 +342,27 @@ function addExtrapolated(net: Float64Array, c: Float64Array, prev: Float64Array,
   }
 }
 
-/** n/ni from neutrality (see intrinsic.ts) and the field factor 1 + |N|/√(N² + 4ni²). */
-function carrierRatios(net: Float64Array, ni: number, ratio: Float64Array, inverse: Float64Array, enhancement: Float64Array): void {
-  const twoNi = 2 * ni;
-  for (let k = 0; k < net.length; k++) {
-    const u = net[k] / twoNi;
-    const root = Math.sqrt(u * u + 1);
-    // n/ni = u + √(u² + 1) and p/ni = √(u² + 1) − u (their product is 1); each form loses
-    // digits where u is large of the other sign, so the other is taken as the reciprocal.
-    ratio[k] = u >= 0 ? u + root : 1 / (root - u);
-    inverse[k] = u >= 0 ? 1 / (u + root) : root - u;
-    const a = u < 0 ? -u : u;
-    enhancement[k] = 1 + a / root;
-  }
-}
-
-function donorBudgets(nu: Float64Array, ratio: Float64Array, enhancement: Float64Array, net: Float64Array,
-                      neutral: number, single: number, double: number, field: boolean): void {
-  for (let k = 0; k < nu.length; k++) {
-    const r = ratio[k];
-    const h = field && net[k] > 0 ? enhancement[k] : 1;
-    nu[k] = (neutral + single * r + double * r * r) * h;
-  }
-}
-
-function acceptorBudgets(nu: Float64Array, holes: Float64Array, enhancement: Float64Array, net: Float64Array,
-                         neutral: number, single: number, field: boolean): void {
-  for (let k = 0; k < nu.length; k++) {
-    const h = field && net[k] < 0 ? enhancement[k] : 1;
-    nu[k] = (neutral + single * holes[k]) * h;
+/**
+ * ν = (ν⁰ + ν¹·r + ν²·r²)·h at every node, r = n/ni for a donor (sign +1) or p/ni for an
+ * acceptor (sign −1), from neutrality: with u = ±N/2ni, r = u + √(u² + 1) (see intrinsic.ts;
+ * for u < 0 the reciprocal form 1/(√(u² + 1) − u) keeps the digits). h = 1 + |u|/√(u² + 1)
+ * on the species whose type carries the net doping (u > 0), else 1. Writes row-major `nu`
+ * and transposed `nuT` at once.
+ */
+function nodeBudgets(nu: Float64Array, nuT: Float64Array, net: Float64Array, nx: number, nz: number, ni: number,
+                     sign: number, neutral: number, single: number, double: number, field: boolean): void {
+  const scale = sign / (2 * ni);
+  for (let j = 0; j < nz; j++) {
+    const row = j * nx;
+    for (let i = 0; i < nx; i++) {
+      const u = net[row + i] * scale;
+      const root = Math.sqrt(u * u + 1);
+      const r = u >= 0 ? u + root : 1 / (root - u);
+      const h = field && u > 0 ? 1 + u / root : 1;
+      const v = (neutral + single * r + double * r * r) * h;
+      nu[row + i] = v;
+      nuT[i * nz + j] = v;
+    }
   }
 }
 
