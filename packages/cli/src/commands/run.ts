@@ -4,6 +4,7 @@ import { analyze, coarseReports, parseRecipe, planRecipe, simulate, withErrorBar
 import { UsageError } from '../errors.ts';
 import { fmtLength, fmtPlusMinus, fmtRatio, fmtSci, table } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits, withLimitHint } from '../limits.ts';
+import { inside, writeAtomic } from '../files.ts';
 import { writeRunFolder } from '../output.ts';
 import { progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
@@ -50,7 +51,9 @@ export function runCommand(args: string[]): number {
     coarse.done();
     analysis.report = withErrorBars([analysis.report, ...reports], plan.recipe);
   }
-  const written = writeRunFolder(out, analysis);
+  // The recipe as validated, beside its results: `edgewise view` re-runs it in live mode.
+  writeAtomic(inside(out, 'recipe.json'), `${JSON.stringify(plan.recipe, null, 2)}\n`);
+  const written = ['recipe.json', ...writeRunFolder(out, analysis)];
   const now = performance.now();
   const timing = { seconds: (now - started) / 1000, errorSeconds: errorSolves > 0 ? (now - solved) / 1000 : null };
   process.stdout.write(`${summary(analysis, timing.seconds, timing.errorSeconds)}\nwrote ${out}/: ${written.join(', ')}\n`);
