@@ -49,13 +49,13 @@ export function parseLimits(values: { 'max-mesh-points'?: string; 'max-point-ste
  * raises the limit to the solver's message, which says what the recipe would need and how to
  * lower that, and ends "or raise the limit".
  */
-export function withLimitHint<T>(limits: PlanLimits, work: () => T): T {
+export function withLimitHint<T>(limits: PlanLimits | undefined, work: () => T): T {
   try {
     return work();
   } catch (e) {
     if (e instanceof RecipeError && /above the limit of/.test(e.detail)) {
       const key: keyof PlanLimits | null = e.field === 'mesh' ? 'maxMeshPoints' : e.field === 'numerics' ? 'maxPointSteps' : null;
-      if (key) throw new RecipeError(e.field, `${e.detail} with ${OPTION[key]} N (now ${formatCount(limits[key])})`);
+      if (key) throw new RecipeError(e.field, `${e.detail} with ${OPTION[key]} N (now ${formatCount((limits ?? DEFAULT_LIMITS)[key])})`);
     }
     throw e;
   }

@@ -2,8 +2,10 @@ import { existsSync, mkdirSync, statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { basename, extname, join, resolve } from 'node:path';
 import { parseArgs } from 'node:util';
+import type { PlanLimits } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
 import { fmtLength, fmtRatio, fmtSci, table } from '../format.ts';
+import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits } from '../limits.ts';
 import { progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
 import type { RunRow } from '../sweep/csv.ts';
@@ -15,7 +17,8 @@ import { inShard, parseShard, sweepStem, type Shard } from '../sweep/shard.ts';
 import type { ErrorSolves } from '../sweep/task.ts';
 
 export const SWEEP_USAGE =
-  'edgewise sweep RECIPE [--widths RANGE] [--set PATH=VALUES]… [--out DIR] [--jobs N] [--error-solves 0|1|2] [--resume] [--shard K/N] [--quiet]';
+  'edgewise sweep RECIPE [--widths RANGE] [--set PATH=VALUES]… [--out DIR] [--jobs N] [--error-solves 0|1|2] [--resume] [--shard K/N] ' +
+  `${LIMITS_USAGE} [--quiet]`;
 
 /** Exit codes beyond main.ts's 0 (ok), 1 (internal failure) and 2 (bad input). */
 export const EXIT_RUNS_FAILED = 3;
@@ -65,18 +68,20 @@ export async function sweepCommand(args: string[]): Promise<number> {
       resume: { type: 'boolean', default: false },
       shard: { type: 'string' },
       quiet: { type: 'boolean', default: false },
+      ...LIMIT_OPTIONS,
     },
   });
   if (positionals.length !== 1) throw new UsageError(`sweep takes one recipe file (usage: ${SWEEP_USAGE})`);
   const recipePath = positionals[0];
   const jobs = parseJobs(values.jobs);
   const errorSolves = parseErrorSolves(values['error-solves']);
+  const limits = parseLimits(values);
   const shard = values.shard === undefined ? null : parseShard(values.shard);
   const out = values.out ?? defaultSweepFolder(recipePath);
   if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${out}: is a file, not a folder`);
   // Every run is built and validated here; nothing is written before this line succeeds.
-  const matrix = buildMatrix(readRecipeFile(recipePath), { widths: values.widths, set: values.set });
-  return runSweep(matrix, { out, jobs, errorSolves, shard, resume: values.resume, quiet: values.quiet });
+  const matrix = buildMatrix(readRecipeFile(recipePath), { widths: values.widths, set: values.set, limits });
+  return runSweep(matrix, { out, jobs, errorSolves, shard, resume: values.resume, quiet: values.quiet, limits });
 }
 
 interface SweepOptions {
@@ -86,6 +91,7 @@ interface SweepOptions {
   shard: Shard | null;
   resume: boolean;
   quiet: boolean;
+  limits: PlanLimits;
 }
 
 async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<number> {
@@ -168,7 +174,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
       const recipe = runRecipe(matrix.base, matrix.parameters, run.values);
       const row = rows.get(run.id)!;
       try {
-        const outcome = await currentPool.run({ id: run.id, folder: resolve(out, run.dir), recipe, recipeText: `${JSON.stringify(recipe, null, 2)}\n`, errorSolves: options.errorSolves });
+        const outcome = await currentPool.run({ id: run.id, folder: resolve(out, run.dir), recipe, recipeText: `${JSON.stringify(recipe, null, 2)}\n`, errorSolves: options.errorSolves, limits: options.limits });
         row.windows = outcome.windows;
         row.status = 'ok';
         for (const w of outcome.warnings) warnings.push(`run ${run.id}: ${w}`);

@@ -1,5 +1,6 @@
-import { parseRecipe, planRecipe, RecipeError, type Recipe } from '@edgewise/solver2d';
+import { parseRecipe, planRecipe, RecipeError, type PlanLimits, type Recipe } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
+import { withLimitHint } from '../limits.ts';
 import { checkNumericPath, formatPath, parsePath, setAt, type Segment } from './fields.ts';
 import { recipeSha256, sha256 } from './hash.ts';
 import { parseValues } from './values.ts';
@@ -43,6 +44,8 @@ export interface SweepRequest {
   widths?: string;
   /** `PATH=VALUES`, as given to --set */
   set: string[];
+  /** work limits every run is planned under (default: the solver's) */
+  limits?: PlanLimits;
 }
 
 /**
@@ -160,7 +163,7 @@ export function buildMatrix(input: unknown, request: SweepRequest): SweepMatrix 
     const others = parameters.length > 1 ? ` in run ${id} (${describeValues(values)})` : '';
     const r = runRecipe(base, parameters, values, others);
     try {
-      planRecipe(parseRecipe(r));
+      withLimitHint(request.limits, () => planRecipe(parseRecipe(r), request.limits));
     } catch (e) {
       if (e instanceof RecipeError) throw new UsageError(`sweep run ${id} (${describeValues(values)}): bad recipe: ${e.message}`);
       throw e;

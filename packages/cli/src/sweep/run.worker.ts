@@ -4,6 +4,7 @@ import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/umd/node-adapter.js';
 import { analyze, coarseReports, parseRecipe, planRecipe, simulate, withErrorBars } from '@edgewise/solver2d';
 import { inside, writeAtomic } from '../files.ts';
+import { withLimitHint } from '../limits.ts';
 import { writeRunFolder } from '../output.ts';
 import { PROGRESS_OFFSET, RECIPE_FILE, STOP_INDEX, type RunOutcome, type RunTask, type RunWorkerApi } from './task.ts';
 
@@ -21,17 +22,17 @@ const api: RunWorkerApi = {
     // An old marker would vouch for files this run is about to replace.
     rmSync(inside(task.folder, RECIPE_FILE), { force: true });
     progress[0] = 0;
-    const plan = planRecipe(parseRecipe(task.recipe));
+    const plan = withLimitHint(task.limits, () => planRecipe(parseRecipe(task.recipe), task.limits));
     const shouldStop = () => Atomics.load(stop, STOP_INDEX) !== 0;
     // The coarser solves cost a fraction of the main one (a quarter of the points, fewer steps).
     const mainShare = task.errorSolves === 0 ? 1 : 0.8;
-    const sim = simulate(plan, { onProgress: (p) => (progress[0] = mainShare * (p.done / p.total)), shouldStop });
+    const sim = withLimitHint(task.limits, () => simulate(plan, { onProgress: (p) => (progress[0] = mainShare * (p.done / p.total)), shouldStop }));
     const analysis = analyze(sim);
     if (task.errorSolves !== 0) {
       let level = 1;
       const levels = task.errorSolves;
       const reports = coarseReports(plan.recipe, {
-        levels, shouldStop, onLevel: (l) => (level = l),
+        levels, shouldStop, limits: task.limits, onLevel: (l) => (level = l),
         onProgress: (p) => (progress[0] = mainShare + (1 - mainShare) * ((level - 1 + p.done / p.total) / levels)),
       });
       analysis.report = withErrorBars([analysis.report, ...reports], plan.recipe);

@@ -1,4 +1,4 @@
-import type { WindowReport } from '@edgewise/solver2d';
+import type { PlanLimits, WindowReport } from '@edgewise/solver2d';
 
 /** What the main thread sends a worker for one run, and what comes back. */
 export interface RunTask {
@@ -10,6 +10,8 @@ export interface RunTask {
   recipeText: string;
   /** coarser solves for the error bars (0: none; 1: mesh 2h; 2: 2h and 4h) */
   errorSolves: ErrorSolves;
+  /** work limits the run is planned under (default: the solver's) */
+  limits?: PlanLimits;
 }
 
 export type ErrorSolves = 0 | 1 | 2;
