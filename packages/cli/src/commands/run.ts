@@ -1,3 +1,4 @@
+import { existsSync, statSync } from 'node:fs';
 import { basename, extname, join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { analyze, coarseReports, parseRecipe, planRecipe, simulate, withErrorBars, type Analysis, type Report } from '@edgewise/solver2d';
@@ -34,6 +35,7 @@ export function runCommand(args: string[]): number {
   if (positionals.length !== 1) throw new UsageError(`run takes one recipe file (usage: ${RUN_USAGE})`);
   const recipePath = positionals[0];
   const out = values.out ?? defaultOutFolder(recipePath);
+  if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${out}: is a file, not a folder`);
   const started = performance.now();
   const plan = withLimitHint(limits, () => planRecipe(parseRecipe(readRecipeFile(recipePath)), limits));
   const progress = progressReporter(values.quiet ? null : process.stderr, 'solving');
