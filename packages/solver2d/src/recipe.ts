@@ -205,9 +205,14 @@ export const recipeSchema = strict({
 export type Recipe = z.infer<typeof recipeSchema>;
 export type Step = Recipe['steps'][number];
 
+/** `steps[1].minutes`; a key that is not a plain name is quoted, `dopants["a b"]`, so the field stays one line. */
 function pathToField(path: readonly PropertyKey[]): string {
   let out = '';
-  for (const p of path) out += typeof p === 'number' ? `[${p}]` : out ? `.${String(p)}` : String(p);
+  for (const p of path) {
+    if (typeof p === 'number') out += `[${p}]`;
+    else if (typeof p === 'string' && /^[A-Za-z_][\w-]*$/.test(p)) out += out ? `.${p}` : p;
+    else out += `[${JSON.stringify(String(p))}]`;
+  }
   return out || 'recipe';
 }
 
