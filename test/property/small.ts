@@ -1,0 +1,72 @@
+import { analyze, parseRecipe, planRecipe, simulate, type Plan } from '../../packages/solver2d/src/index.ts';
+import type { Simulation } from '../../packages/solver2d/src/simulate.ts';
+import { UM_TO_CM } from '../../packages/solver2d/src/units.ts';
+import { count } from './support.ts';
+
+export const NO_LIMITS = { maxMeshPoints: Infinity, maxPointSteps: Infinity };
+import type { Json, Recipe } from './generators.ts';
+
+/**
+ * The same recipe on a small mesh, for properties that solve it: about 24 columns and 15 rows
+ * of the depth the default plan chose, and steps growing by 1.5 (unless the recipe sets its
+ * own). A solve then takes a millisecond or two. Nothing here is about accuracy: the
+ * properties are ones every mesh must keep.
+ */
+export function onSmallMesh(recipe: Recipe): Recipe {
+  // Sizing only: the default mesh is counted, never allocated, so no limit applies to it here.
+  const plan = planRecipe(parseRecipe(recipe), NO_LIMITS);
+  const depthUm = Number(plan.mesh.depthUm.toPrecision(4));
+  const widthUm = (recipe.crossSection as Recipe).widthUm as number;
+  return {
+    ...recipe,
+    crossSection: { widthUm, depthUm },
+    mesh: { surfaceSpacingUm: depthUm / 14, edgeSpacingUm: widthUm / 24, maxSpacingUm: Math.max(depthUm / 7, widthUm / 12) },
+    numerics: { stepGrowth: 1.5, ...((recipe.numerics as Record<string, Json> | undefined) ?? {}) },
+  };
+}
+
+/**
+ * The largest concentration a species' sources put into the silicon, cm^-3: the held surface
+ * value, a film's dose in the surface cell, an implant's peak Q/(√(2π)·ΔRp) (closed forms of
+ * each source as simulate.ts places it).
+ */
+export function sourcePeak(plan: Plan, name: string): number {
+  let peak = 0;
+  for (const st of plan.steps) {
+    if (st.dopant !== name) continue;
+    if (st.kind === 'predeposition') {
+      const sp = plan.species.find((s) => s.name === name)!;
+      peak = Math.max(peak, st.surfaceConcentrationCm3 ?? Math.max(Number(sp.solubility(st.startC!)), Number(sp.solubility(st.endC!))));
+    }
+    if (st.kind === 'film' && st.doseCm2 !== null) peak = Math.max(peak, st.doseCm2 / (plan.mesh.dzVolume[0] * UM_TO_CM));
+    if (st.implant) peak = Math.max(peak, st.implant.doseCm2 / (Math.sqrt(2 * Math.PI) * st.implant.straggleUm * UM_TO_CM));
+  }
+  return peak;
+}
+
+/**
+ * No negative concentration, to rounding: a node that is zero in exact arithmetic comes out
+ * of the line solves as a difference of values up to the source's peak, so it may land a few
+ * hundred ε of that peak below zero (−8e5 cm^-3 under a 3e21 implant peak has been seen,
+ * 1.1 ε). A scheme that rang would leave lobes of 1e-3 of the peak or more; 256 ε is far below.
+ */
+export function checkNonNegative(sim: Simulation): void {
+  for (const [name, c] of Object.entries(sim.concentration)) {
+    let lowest = Infinity;
+    let at = -1;
+    for (let k = 0; k < c.length; k++) if (c[k] < lowest) { lowest = c[k]; at = k; }
+    const floor = -256 * Number.EPSILON * sourcePeak(sim.plan, name);
+    if (!(lowest >= floor)) {
+      throw new Error(`${name} is ${lowest} at node ${at} (row ${Math.floor(at / sim.plan.mesh.nx)}, column ${at % sim.plan.mesh.nx}), below ${floor.toExponential(2)}`);
+    }
+  }
+  count('no negative concentration (every solve in this file)');
+}
+
+/** parse → plan → simulate → analyze, with the non-negativity check on the way. */
+export function solve(recipe: unknown): { plan: Plan; sim: Simulation; report: ReturnType<typeof analyze>['report'] } {
+  const plan = planRecipe(parseRecipe(recipe));
+  const sim = simulate(plan);
+  checkNonNegative(sim);
+  return { plan, sim, report: analyze(sim).report };
+}
