@@ -14,6 +14,12 @@ interface Tally {
 }
 
 const tallies = new Map<string, Tally>();
+const worsts = new Map<string, number>();
+
+/** Keeps the largest value seen under a name, printed with the counts (how close a bound came). */
+export function worst(name: string, value: number): void {
+  worsts.set(name, Math.max(worsts.get(name) ?? -Infinity, value));
+}
 
 /**
  * Counts one case of a property. Called from inside predicates, so that a property checked
@@ -44,6 +50,7 @@ export function printCountsAfterAll(file: string): void {
   afterAll(() => {
     const lines = [...tallies].map(([name, t]) =>
       `  ${name}: ${t.cases} cases, ${(t.ms / 1000).toFixed(1)} s, slowest ${t.slowestMs.toFixed(1)} ms`);
+    for (const [name, v] of worsts) lines.push(`  ${name}: ${v.toExponential(2)}`);
     console.log(`property cases in ${file}:\n${lines.join('\n')}`);
   });
 }
