@@ -78,7 +78,7 @@ const CASES: Case[] = [
   { name: '10,000 nested arrays as a step', file: 'nested-step.json', content: withText('"steps":[', `"steps":[${nested(10_000)},`),
     line: '{file}: steps[0][0][0][0][0]… is nested more than 32 levels deep; a recipe needs at most 5' },
   { name: '10,000 nested YAML flow lists', file: 'nested.yaml', content: `title: ${nested(10_000)}\n`,
-    line: '{file}: is not valid YAML: nested too deeply to read (a recipe nests at most 32 levels)' },
+    line: '{file}: is not valid YAML: nested too deeply to read (a recipe needs at most 5 levels)' },
 
   // Numbers at and past the ends of float64
   { name: '1e308 where a concentration goes', file: 'huge.json', content: withText('1e15', '1e308'),

@@ -7,10 +7,11 @@ import { InputError } from './errors.ts';
 export const MAX_RECIPE_BYTES = 1 << 20;
 
 /**
- * Deepest nesting accepted. The deepest a recipe goes is 5 (dopants.X.solubilityCm3[k][1]);
- * the margin leaves room for the schema to name whatever is wrong with a little more.
+ * Deepest nesting accepted. The deepest a recipe goes is RECIPE_DEPTH, 5
+ * (dopants.X.solubilityCm3[k][1]); the margin leaves the schema to name what is wrong with a little more.
  */
 export const MAX_RECIPE_DEPTH = 32;
+const RECIPE_DEPTH = 5;
 
 /** YAML aliases a recipe may expand (the yaml library's count, which weighs each by its size). */
 const MAX_YAML_ALIASES = 100;
@@ -146,7 +147,7 @@ function parseYamlRecipe(path: string, text: string): unknown {
   const problem = doc.errors[0] ?? doc.warnings[0];
   if (problem) {
     if (problem.code === 'RESOURCE_EXHAUSTION' || /call stack/i.test(problem.message)) {
-      throw fail(`nested too deeply to read (a recipe nests at most ${MAX_RECIPE_DEPTH} levels)`);
+      throw fail(`nested too deeply to read (a recipe needs at most ${RECIPE_DEPTH} levels)`);
     }
     throw fail(lowerFirst(problem.message.split('\n')[0].replace(/:\s*$/, '')));
   }
@@ -156,7 +157,7 @@ function parseYamlRecipe(path: string, text: string): unknown {
     if (e instanceof ReferenceError && /alias/i.test(e.message)) {
       throw fail(`its aliases (*name) would expand beyond what a recipe can hold (at most ${MAX_YAML_ALIASES} expansions)`);
     }
-    if (e instanceof RangeError) throw fail(`nested too deeply to read (a recipe nests at most ${MAX_RECIPE_DEPTH} levels)`);
+    if (e instanceof RangeError) throw fail(`nested too deeply to read (a recipe needs at most ${RECIPE_DEPTH} levels)`);
     throw fail(lowerFirst((e as Error).message.split('\n')[0]));
   }
 }
@@ -181,7 +182,7 @@ function plainCopy(file: string, root: unknown): unknown {
     if (value === null || typeof value === 'string' || typeof value === 'number' || typeof value === 'boolean') return value;
     if (typeof value !== 'object') throw new InputError(`${file}: ${fieldPath(path)} holds a ${typeof value}, which a recipe cannot`);
     if (ancestors.includes(value)) throw new InputError(`${file}: ${fieldPath(path)} contains itself (a YAML alias inside its own anchor)`);
-    if (ancestors.length >= MAX_RECIPE_DEPTH) throw new InputError(`${file}: ${fieldPath(path)} is nested more than ${MAX_RECIPE_DEPTH} levels deep; a recipe needs at most 5`);
+    if (ancestors.length >= MAX_RECIPE_DEPTH) throw new InputError(`${file}: ${fieldPath(path)} is nested more than ${MAX_RECIPE_DEPTH} levels deep; a recipe needs at most ${RECIPE_DEPTH}`);
     const array = Array.isArray(value);
     if (!array && Object.getPrototypeOf(value) !== Object.prototype) {
       throw new InputError(`${file}: ${fieldPath(path)} holds a ${value.constructor?.name ?? 'special'} value (a YAML tag such as !!binary or !!set), which a recipe cannot`);
