@@ -211,7 +211,7 @@ describe('work limits: refused before any field is allocated, saying what it wou
     const r = edgewise(['run', path, '--out', out, '--max-point-steps', '1e5', '--quiet']);
     expect(r.code, r.stderr).toBe(2);
     expect(r.stderr.trim().split('\n')).toHaveLength(1);
-    const m = /^edgewise: bad recipe: numerics: would take (\d+) time steps on (\d+) mesh points \(([\d.e+]+) point-steps, .*\), above the limit of 1\.00e\+5; lower mesh\.refine or raise numerics\.stepGrowth, or raise the limit with --max-point-steps N \(now 1e5\)$/.exec(r.stderr.trim());
+    const m = /^edgewise: bad recipe: numerics: would take (\d+) time steps on (\d+) mesh points \(([\d.e+]+) point-steps, .*\), above the limit of 1\.00e5; lower mesh\.refine or raise numerics\.stepGrowth, or raise the limit with --max-point-steps N \(now 1e5\)$/.exec(r.stderr.trim());
     expect(m, r.stderr).not.toBeNull();
     const [steps, points, work] = m!.slice(1).map(Number);
     // The stated work is steps × points to the 3 digits printed, and above the limit.
@@ -241,25 +241,23 @@ describe('work limits: refused before any field is allocated, saying what it wou
 });
 
 /**
- * Known defects, in plan.ts (which this work does not change): schema-valid recipes that end
- * in an internal error (exit 1, a stack trace) instead of a run or a one-line refusal. Each is
- * written as what should happen, exit 0 or exit 2 with one line, and marked it.fails: when
- * plan.ts handles the case, the test starts passing, vitest reports it, and it becomes an `it`
- * (and the allowance in test/property/recipes.test.ts goes).
- * A worse one is not here, because it needs gigabytes: a recipe whose diffusion length is tiny
- * beside the cross-section (D0 1e-200 cm²/s, Ea 10 eV, or a 1e-300 min predeposition) makes
- * plan.ts build an axis of 1e8+ cells before the mesh limit is checked, and V8 aborts.
+ * Recipes at the edges of the schema's ranges that once ended in an internal error inside the
+ * planner: each must now run (exit 0) or be refused in one line (exit 2). A recipe whose
+ * diffusion length is tiny beside the cross-section is among them: its mesh is counted, and
+ * refused, before any axis is built.
  */
-describe('known plan.ts defects: internal errors on valid recipes', () => {
+describe('edge-of-range recipes that once failed inside the planner: planned, or refused in one line', () => {
   const KNOWN: [string, string][] = [
     ['a cross-section 1e-6 µm deep (one row)', withText('"widthUm":24', '"widthUm":24,"depthUm":1e-6')],
     ['one window over the whole of a narrow cross-section (one column)',
       withText('"crossSection":{"widthUm":24},"mask":{"windows":[[8,16]]}', '"crossSection":{"widthUm":0.5},"mask":{"windows":[[0,0.5]]}')],
     ['a window edge at 5e-324 µm (a cell of no width)', withText('[[8,16]]', '[[5e-324,8]]')],
     ['a surface spacing coarser than the depth the plan picks', withKey('"mesh":{"surfaceSpacingUm":5}')],
+    ['a dopant that barely moves (D0 1e-200 cm²/s)', withKey('"dopants":{"Z":{"type":"acceptor","D0Cm2PerS":1e-200,"EaEv":10}}').replace('"dopant":"B"', '"dopant":"Z"')],
+    ['a predeposition of 1e-300 minutes', withText('"minutes":30', '"minutes":1e-300')],
   ];
   KNOWN.forEach(([name, text], k) => {
-    it.fails(name, () => {
+    it(name, () => {
       const path = join(dir, `known-${k}.json`);
       writeFileSync(path, text);
       const r = edgewise(['run', path, '--out', join(dir, `out-known-${k}`), '--error-solves', '0', '--quiet']);

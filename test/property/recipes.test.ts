@@ -16,23 +16,11 @@ printCountsAfterAll('recipes.test.ts');
 const KEY = String.raw`\["(?:[^"\\]|\\.)*"\]`;
 const FIELD = new RegExp(String.raw`^(recipe|([A-Za-z_][\w-]*|${KEY})(\[\d+\]|\.[A-Za-z_][\w-]*|${KEY})*)$`);
 
-/**
- * Internal errors plan.ts raises today on schema-valid input it should either plan or refuse
- * with a RecipeError: a cross-section or window edge so small that an axis gets one cell, or
- * none. test/cli/hostile.test.ts holds each as a known defect (it.fails); when plan.ts refuses
- * them properly, those start passing and this list should go.
- */
-const KNOWN_PLAN_DEFECTS = [/^mesh too small: \d+ columns, \d+ rows$/, /^Invalid typed array length: Infinity$/];
-
-function expectRecipeError(run: () => unknown, what: string, allowKnown = false): RecipeError | null {
+function expectRecipeError(run: () => unknown, what: string): RecipeError | null {
   try {
     run();
     return null;
   } catch (e) {
-    if (allowKnown && KNOWN_PLAN_DEFECTS.some((re) => re.test((e as Error).message))) {
-      count('parse and plan, wild cases that hit a known plan.ts defect');
-      return null;
-    }
     if (!(e instanceof RecipeError)) throw new Error(`${what}: threw ${(e as Error).name}: ${(e as Error).message}`);
     if (e.message.includes('\n')) throw new Error(`${what}: the message spans lines: ${JSON.stringify(e.message)}`);
     if (!FIELD.test(e.field)) throw new Error(`${what}: ${JSON.stringify(e.field)} is not a field path`);
@@ -71,7 +59,7 @@ function parseAndPlan(c: Case): void {
     else if (e) throw new Error(`a well-formed recipe was refused: ${e.message}\n${JSON.stringify(c.g.recipe)}`);
     return;
   }
-  const e = expectRecipeError(() => checkPlan(planRecipe(parseRecipe(c.recipe))), c.what, c.kind === 'wild');
+  const e = expectRecipeError(() => checkPlan(planRecipe(parseRecipe(c.recipe))), c.what);
   if (c.kind === 'wild') return;
   if (!e) throw new Error(`${c.what}: accepted\n${JSON.stringify(c.recipe)}`);
   // The field broken, or one inside it (a list of two numbers where windows go is refused at windows[0]).

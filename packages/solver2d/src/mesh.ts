@@ -55,7 +55,8 @@ function spacingAt(distance: number, rule: SpacingRule): number {
  * integral rounded up, node k where the cumulative integral reaches k·(total/n).
  * `distance(x)` is the distance from x to the nearest feature.
  */
-function gradedInterval(a: number, b: number, distance: (x: number) => number, rule: SpacingRule): number[] {
+/** Cumulative ∫dx/s(x) over [a, b] at SAMPLES + 1 points (trapezoid rule). */
+function spacingIntegral(a: number, b: number, distance: (x: number) => number, rule: SpacingRule): Float64Array {
   const h = (b - a) / SAMPLES;
   const cumulative = new Float64Array(SAMPLES + 1);
   let previous = 1 / spacingAt(distance(a), rule);
@@ -64,8 +65,18 @@ function gradedInterval(a: number, b: number, distance: (x: number) => number, r
     cumulative[k] = cumulative[k - 1] + 0.5 * h * (previous + next);
     previous = next;
   }
+  return cumulative;
+}
+
+function cellsFor(total: number): number {
+  return Math.max(1, Math.ceil(total - 1e-9));
+}
+
+function gradedInterval(a: number, b: number, distance: (x: number) => number, rule: SpacingRule): number[] {
+  const h = (b - a) / SAMPLES;
+  const cumulative = spacingIntegral(a, b, distance, rule);
   const total = cumulative[SAMPLES];
-  const cells = Math.max(1, Math.ceil(total - 1e-9));
+  const cells = cellsFor(total);
   const points = [a];
   let k = 0;
   for (let m = 1; m < cells; m++) {
@@ -78,16 +89,36 @@ function gradedInterval(a: number, b: number, distance: (x: number) => number, r
   return points;
 }
 
+function axisStops(length: number, fixed: readonly number[]): number[] {
+  return [...new Set([0, length, ...fixed])].sort((p, q) => p - q);
+}
+
+function distanceTo(features: readonly number[]): (x: number) => number {
+  if (features.length === 0) return () => Infinity;
+  return (x: number) => {
+    let d = Infinity;
+    for (const f of features) d = Math.min(d, Math.abs(x - f));
+    return d;
+  };
+}
+
+/**
+ * How many cells `gradedAxis` would make, without placing them: a request for an absurd
+ * mesh (a diffusion length of picometres across a wafer's width) is refused by its count,
+ * before any large array exists.
+ */
+export function gradedAxisCells(length: number, fixed: readonly number[], features: readonly number[], rule: SpacingRule): number {
+  const stops = axisStops(length, fixed);
+  const distance = distanceTo(features);
+  let cells = 0;
+  for (let s = 0; s + 1 < stops.length; s++) cells += cellsFor(spacingIntegral(stops[s], stops[s + 1], distance, rule)[SAMPLES]);
+  return cells;
+}
+
 /** Faces on [0, width] with a face on every fixed point and fine spacing near `features`. */
 export function gradedAxis(length: number, fixed: readonly number[], features: readonly number[], rule: SpacingRule): Float64Array {
-  const stops = [...new Set([0, length, ...fixed])].sort((p, q) => p - q);
-  const distance = features.length === 0
-    ? () => Infinity
-    : (x: number) => {
-        let d = Infinity;
-        for (const f of features) d = Math.min(d, Math.abs(x - f));
-        return d;
-      };
+  const stops = axisStops(length, fixed);
+  const distance = distanceTo(features);
   const out: number[] = [0];
   for (let s = 0; s + 1 < stops.length; s++) {
     const interval = gradedInterval(stops[s], stops[s + 1], distance, rule);

@@ -2,7 +2,7 @@ import erfcinv from '@stdlib/math-base-special-erfcinv';
 import { BUILTIN_DOPANTS, diffusivityAt, intrinsicDiffusivity, type Dopant, type DopantType } from './dopants.ts';
 import type { ImplantSpec } from './implant.ts';
 import { buildMask, maskEdges, type Mask, type Window } from './mask.ts';
-import { buildMesh, gradedAxis, type Mesh, type SpacingRule } from './mesh.ts';
+import { buildMesh, gradedAxis, gradedAxisCells, type Mesh, type SpacingRule } from './mesh.ts';
 import { DIFFUSION_MODELS, RecipeError, type Recipe, type Step } from './recipe.ts';
 import { interpolateSolubility, solidSolubilityCm3 } from './solubility.ts';
 import { intrinsicCarriersCm3 } from './intrinsic.ts';
@@ -118,6 +118,11 @@ export const DEFAULT_LIMITS: PlanLimits = { maxMeshPoints: 4_000_000, maxPointSt
 const CELLS_PER_REACH_Z = 80;
 const CELLS_PER_REACH_X = 40;
 const FINE_REACH = 1.3;
+/** Shallowest profile accepted, µm (a tenth of a nanometre: below it nothing has diffused). */
+const MIN_REACH_UM = 1e-4;
+/** At least this many cells across the section and down it, whatever the spacing rules say. */
+const MIN_CELLS_X = 8;
+const MIN_CELLS_Z = 8;
 /** Cells per diffusion length of a short predeposition, at the surface and the edges. */
 const CELLS_PER_SOURCE_LENGTH = 16;
 /** A predeposition is short when its ∫D dt is under this fraction of the species' total. */
@@ -158,17 +163,26 @@ function solubilityOf(recipe: Recipe, name: string): (temperatureC: number) => n
   return (t) => interpolateSolubility(sorted, t);
 }
 
+/** Window edges closer than this to each other or to a wall (but not on it) are refused, µm. */
+const MIN_FEATURE_UM = 1e-3;
+
 function checkWindows(windows: readonly Window[], widthUm: number): void {
   windows.forEach(([x0, x1], k) => {
     if (!(x1 > x0)) throw new RecipeError(`mask.windows[${k}]`, `must have x1 > x0: a window needs a positive width (got [${x0}, ${x1}] µm)`);
     if (x1 > widthUm) throw new RecipeError(`mask.windows[${k}]`, `must lie inside the cross-section [0, ${widthUm}] µm (got [${x0}, ${x1}] µm)`);
+    if (x1 - x0 < MIN_FEATURE_UM) throw new RecipeError(`mask.windows[${k}]`, `must be at least ${MIN_FEATURE_UM} µm wide (got [${x0}, ${x1}] µm)`);
+    for (const [edge, wall] of [[x0, 0], [x1, widthUm]] as const) {
+      if (edge !== wall && Math.abs(edge - wall) < MIN_FEATURE_UM) {
+        throw new RecipeError(`mask.windows[${k}]`, `has an edge ${Math.abs(edge - wall)} µm from a side wall: put it on the wall or at least ${MIN_FEATURE_UM} µm from it`);
+      }
+    }
   });
   const order = windows.map((w, k) => ({ w, k })).sort((a, b) => a.w[0] - b.w[0]);
   for (let m = 1; m < order.length; m++) {
     const prev = order[m - 1];
     const cur = order[m];
-    if (cur.w[0] <= prev.w[1]) {
-      throw new RecipeError(`mask.windows[${cur.k}]`, `overlaps or touches mask.windows[${prev.k}] ([${cur.w[0]}, ${cur.w[1]}] and [${prev.w[0]}, ${prev.w[1]}] µm); merge them into one window`);
+    if (cur.w[0] - prev.w[1] < MIN_FEATURE_UM) {
+      throw new RecipeError(`mask.windows[${cur.k}]`, `overlaps, touches or comes within ${MIN_FEATURE_UM} µm of mask.windows[${prev.k}] ([${cur.w[0]}, ${cur.w[1]}] and [${prev.w[0]}, ${prev.w[1]}] µm); merge them into one window`);
     }
   }
 }
@@ -342,7 +356,16 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
     }
     reachUm = Math.max(reachUm, reach);
   }
-  if (!(reachUm > 0)) throw new RecipeError('steps', 'have no time at temperature after the dopant is introduced: add a drive-in');
+  if (!(reachUm > 0)) {
+    const budget = Math.max(...Object.values(thermalBudgetUm2));
+    if (budget > 0) {
+      throw new RecipeError('steps', `move the dopant too little to resolve: ∫D dt = ${budget.toExponential(2)} µm² (a diffusion length of ${Math.sqrt(budget).toExponential(2)} µm); check the dopants' D0Cm2PerS and EaEv and the step times`);
+    }
+    throw new RecipeError('steps', 'have no time at temperature after the dopant is introduced: add a drive-in');
+  }
+  if (reachUm < MIN_REACH_UM) {
+    throw new RecipeError('steps', `give a profile only ${reachUm.toExponential(2)} µm deep, below the ${MIN_REACH_UM} µm this mesh can resolve; check the dopants' D0Cm2PerS and EaEv, the step times and the implant ranges`);
+  }
   const autoDepth = Math.max(depthNeed, 1.25 * reachUm);
   const depthUm = recipe.crossSection.depthUm ?? autoDepth;
   if (recipe.crossSection.depthUm !== undefined && recipe.crossSection.depthUm < autoDepth) {
@@ -367,16 +390,21 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
     maxUm: m.maxSpacingUm ?? Math.max(fineZ, reachUm / 4 / refine),
     ...nearRule(detailZ, fineZ, m.surfaceSpacingUm),
   };
+  if (zRule.fineUm > depthUm / MIN_CELLS_Z) {
+    warnings.push(`the depth spacing ${zRule.fineUm.toPrecision(3)} µm is coarser than the ${depthUm.toPrecision(3)} µm deep cross-section allows; using ${(depthUm / MIN_CELLS_Z).toPrecision(3)} µm`);
+  }
+  xRule = capRule(xRule, widthUm / MIN_CELLS_X);
+  zRule = capRule(zRule, depthUm / MIN_CELLS_Z);
   const edges = maskEdges(windows, widthUm);
   const fixed = windows.flat();
   const xAxis = (rule: SpacingRule) => gradedAxis(widthUm, fixed, edges, rule);
   const zAxis = (rule: SpacingRule) => gradedAxis(depthUm, [], [0], rule);
-  if (m.columns !== undefined) xRule = ruleForCount(m.columns, (r) => xAxis(r).length - 1, xRule);
-  if (m.rows !== undefined) zRule = ruleForCount(m.rows - 1, (r) => zAxis(r).length - 1, zRule);
+  if (m.columns !== undefined) xRule = ruleForCount(m.columns, (r) => gradedAxisCells(widthUm, fixed, edges, r), xRule);
+  if (m.rows !== undefined) zRule = ruleForCount(m.rows - 1, (r) => gradedAxisCells(depthUm, [], [0], r), zRule);
 
   // Count before building, so an oversized request fails before any large allocation.
-  const xCells = countCells(widthUm, fixed, edges, xRule);
-  const zCells = countCells(depthUm, [], [0], zRule) + 1;
+  const xCells = gradedAxisCells(widthUm, fixed, edges, xRule);
+  const zCells = gradedAxisCells(depthUm, [], [0], zRule) + 1;
   const points = xCells * zCells;
   if (points > limits.maxMeshPoints) {
     throw new RecipeError('mesh', `would need ${points} mesh points (${xCells} × ${zCells}, about ${Math.ceil((points * 8 * 8) / 2 ** 20)} MiB), above the limit of ${limits.maxMeshPoints}; lower mesh.refine or raise the limit`);
@@ -430,7 +458,10 @@ function fastestBudget(sp: SpeciesPlan, steps: StepPlan[], from: number, peak: n
   return budget;
 }
 
-/** Cells an axis would get, without building it. */
-function countCells(length: number, fixed: readonly number[], features: readonly number[], rule: SpacingRule): number {
-  return gradedAxis(length, fixed, features, rule).length - 1;
+/** No spacing of a rule coarser than `largest`. */
+function capRule(rule: SpacingRule, largest: number): SpacingRule {
+  return {
+    ...rule, fineUm: Math.min(rule.fineUm, largest), maxUm: Math.min(rule.maxUm, largest),
+    ...(rule.nearUm !== undefined ? { nearUm: Math.min(rule.nearUm, largest) } : {}),
+  };
 }

@@ -195,8 +195,11 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   const work = total * cells;
   if (work > plan.limits.maxPointSteps) {
     // About 30 ns a point-step on one core of the 2-core machine this was measured on.
-    throw new RecipeError('numerics', `would take ${total} time steps on ${cells} mesh points (${work.toExponential(2)} point-steps, ` +
-      `about ${Math.ceil((work * 3e-8) / 60)} min on one core), above the limit of ${plan.limits.maxPointSteps.toExponential(2)}; ` +
+    const seconds = work * 3e-8;
+    const time = seconds < 90 ? `${Math.ceil(seconds)} s` : `${Math.ceil(seconds / 60)} min`;
+    const sci = (v: number) => v.toExponential(2).replace('e+', 'e');
+    throw new RecipeError('numerics', `would take ${total} time steps on ${cells} mesh points (${sci(work)} point-steps, ` +
+      `about ${time} on one core), above the limit of ${sci(plan.limits.maxPointSteps)}; ` +
       'lower mesh.refine or raise numerics.stepGrowth, or raise the limit');
   }
   const stepper = new AdiStepper(mesh, mask);
