@@ -83,7 +83,6 @@ export class AdiStepper {
   private readonly savedRows: Float64Array;
   /** ν per node, transposed, and a scratch line of Thomas factors, for variable D */
   private readonly nuT: Float64Array;
-  private readonly cpLine: Float64Array;
   private readonly cpBlock: Float64Array;
 
   constructor(mesh: Mesh, mask: Mask) {
@@ -127,7 +126,6 @@ export class AdiStepper {
     this.star = new Float64Array(nx * nz);
     this.savedRows = new Float64Array(2 * nx);
     this.nuT = new Float64Array(nx * nz);
-    this.cpLine = new Float64Array(n);
     this.cpBlock = new Float64Array(4 * n);
   }
 

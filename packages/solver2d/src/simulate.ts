@@ -136,7 +136,7 @@ function stepSchedule(plan: Plan, st: StepPlan, hFine: number, present: readonly
  * How much faster than intrinsic a species can diffuse at its peak concentration during a
  * step (charged-defect model), to start that step's time steps small enough.
  */
-function speedupOf(plan: Plan, st: StepPlan, present: readonly SpeciesPlan[], peaks: Record<string, number>): number {
+function speedupOf(st: StepPlan, present: readonly SpeciesPlan[], peaks: Record<string, number>): number {
   let speedup = 1;
   if (st.startC === null) return speedup;
   for (const s of present) {
@@ -186,7 +186,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   const schedules = steps.map((st) => {
     if (st.dopant) introduced.add(st.dopant);
     const present = species.filter((s) => introduced.has(s.name));
-    const schedule = stepSchedule(plan, st, hFine, present, budgetBefore, speedupOf(plan, st, present, peaks));
+    const schedule = stepSchedule(plan, st, hFine, present, budgetBefore, speedupOf(st, present, peaks));
     for (const s of present) budgetBefore[s.name] = (budgetBefore[s.name] ?? 0) + (st.budgetUm2[s.name] ?? 0);
     return schedule;
   });
