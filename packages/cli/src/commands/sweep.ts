@@ -166,6 +166,9 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
   const ticker = setInterval(report, 250);
   ticker.unref();
 
+  // Largest runs first (longest-processing-time order), so that no long run starts last and
+  // leaves the other workers idle at the end; ids, folders and the table keep sweep order.
+  toDo.sort((a, b) => b.meshPoints - a.meshPoints || a.id - b.id);
   let lastRecord = performance.now();
   let next = 0;
   const lane = async (currentPool: WorkerPool) => {

@@ -27,6 +27,8 @@ export interface SweepRun {
   dir: string;
   values: Record<string, number>;
   recipeSha256: string;
+  /** mesh points of the run's plan: the work estimate the pool hands out the largest runs first by */
+  meshPoints: number;
 }
 
 export interface SweepMatrix {
@@ -162,13 +164,15 @@ export function buildMatrix(input: unknown, request: SweepRequest): SweepMatrix 
     parameters.forEach((p, k) => (values[p.name] = p.values[counter[k]]));
     const others = parameters.length > 1 ? ` in run ${id} (${describeValues(values)})` : '';
     const r = runRecipe(base, parameters, values, others);
+    let meshPoints: number;
     try {
-      withLimitHint(request.limits, () => planRecipe(parseRecipe(r), request.limits));
+      const plan = withLimitHint(request.limits, () => planRecipe(parseRecipe(r), request.limits));
+      meshPoints = plan.mesh.nx * plan.mesh.nz;
     } catch (e) {
       if (e instanceof RecipeError) throw new UsageError(`sweep run ${id} (${describeValues(values)}): bad recipe: ${e.message}`);
       throw e;
     }
-    runs.push({ id, dir: runDir(id, total), values, recipeSha256: recipeSha256(r) });
+    runs.push({ id, dir: runDir(id, total), values, recipeSha256: recipeSha256(r), meshPoints });
     for (let k = parameters.length - 1; k >= 0; k--) {
       if (++counter[k] < parameters[k].values.length) break;
       counter[k] = 0;
