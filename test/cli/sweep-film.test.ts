@@ -42,6 +42,8 @@ function readCsv(path: string): Record<string, string>[] {
 interface Row {
   width: number;
   xj: number;
+  xjError: number;
+  lateralError: number;
   lateralLeft: number;
   lateralRight: number;
   exactXj: number;
@@ -67,7 +69,8 @@ describe('edgewise sweep --widths: film source and drive-in', () => {
       // D·t from the report's ∫D dt, µm².
       const c = { q: DOSE_CM2, dt: report.thermalBudgetUm2.Q, x0, x1, width: SECTION_UM, depth: report.crossSection.depthUm };
       rows.push({
-        width, xj: Number(row.junctionDepthUm), lateralLeft: Number(row.lateralLeftUm), lateralRight: Number(row.lateralRightUm),
+        width, xj: Number(row.junctionDepthUm), xjError: Number(row.junctionDepthErrorUm), lateralError: Number(row.lateralLeftErrorUm),
+        lateralLeft: Number(row.lateralLeftUm), lateralRight: Number(row.lateralRightUm),
         exactXj: bisect((z) => filmField(c, CENTRE_UM, z) - NB, 0, c.depth),
         exactLateral: bisect((x) => filmField(c, x, 0) - NB, x1, SECTION_UM) - x1,
       });
@@ -100,6 +103,14 @@ describe('edgewise sweep --widths: film source and drive-in', () => {
     for (const r of rows) {
       expect(Math.abs(r.lateralLeft / r.exactLateral - 1), `width ${r.width} µm`).toBeLessThan(TOLERANCE);
       expect(r.lateralRight).toBe(r.lateralLeft);
+    }
+  });
+
+  it('each row\'s error bars (default error solves) cover its deviation from the exact solution', () => {
+    for (const r of rows) {
+      expect(r.xjError, `width ${r.width} µm`).toBeGreaterThan(0);
+      expect(Math.abs(r.xj - r.exactXj), `width ${r.width} µm: xj ${r.xj} ± ${r.xjError}, exact ${r.exactXj}`).toBeLessThanOrEqual(r.xjError);
+      expect(Math.abs(r.lateralLeft - r.exactLateral), `width ${r.width} µm: lateral ${r.lateralLeft} ± ${r.lateralError}, exact ${r.exactLateral}`).toBeLessThanOrEqual(r.lateralError);
     }
   });
 
