@@ -53,9 +53,10 @@ export function runCommand(args: string[]): number {
     coarse.done();
     analysis.report = withErrorBars([analysis.report, ...reports], plan.recipe);
   }
-  // The recipe as validated, beside its results: `edgewise view` re-runs it in live mode.
+  // The recipe as validated, beside its results (`edgewise view` re-runs it in live mode),
+  // written last as in a sweep's run folders, where it marks the run finished.
+  const written = [...writeRunFolder(out, analysis), 'recipe.json'];
   writeAtomic(inside(out, 'recipe.json'), `${JSON.stringify(plan.recipe, null, 2)}\n`);
-  const written = ['recipe.json', ...writeRunFolder(out, analysis)];
   const now = performance.now();
   const timing = { seconds: (now - started) / 1000, errorSeconds: errorSolves > 0 ? (now - solved) / 1000 : null };
   process.stdout.write(`${summary(analysis, timing.seconds, timing.errorSeconds)}\nwrote ${out}/: ${written.join(', ')}\n`);
