@@ -12,7 +12,7 @@
  * pool's ideal on this machine; and a bare arithmetic loop in 1 and in 2 threads.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { Worker } from 'node:worker_threads';
@@ -22,14 +22,8 @@ const repeats = Number(process.argv[2] ?? 3);
 
 // The demo base diffusion (examples/base-resistor.json) over 16 window widths.
 const recipe = {
+  ...JSON.parse(readFileSync(resolve(import.meta.dirname, '..', '..', 'examples', 'base-resistor.json'), 'utf8')),
   title: 'base diffusion for a test resistor (demo scenario, invented), width sweep',
-  substrate: { dopant: 'P', concentrationCm3: 1e15 },
-  crossSection: { widthUm: 24 },
-  mask: { windows: [[8, 16]] },
-  steps: [
-    { kind: 'predeposition', dopant: 'B', surfaceConcentrationCm3: 1e20, temperatureC: 950, minutes: 30 },
-    { kind: 'drive-in', temperatureC: 1100, minutes: 60 },
-  ],
 };
 const WIDTHS = '1:1:16';
 const RUNS = 16;
