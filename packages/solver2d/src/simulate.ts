@@ -279,8 +279,13 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
 
 /** ∫ of each charge-state term of D over [t0, t1] within a step, µm². */
 function componentBudgets(st: StepPlan, s: SpeciesPlan, t0: number, t1: number): ComponentDiffusivities {
-  const pieces = st.startC === st.endC ? 1 : 2;
-  const f = (part: keyof ComponentDiffusivities) => integrate((t) => componentsAt(s.dopant, temperatureAt(st, t))[part], t0, t1, pieces);
+  if (st.startC === st.endC) {
+    // At a fixed temperature the integral is the rate times the step.
+    const d = componentsAt(s.dopant, st.startC!);
+    const dt = t1 - t0;
+    return { neutral: d.neutral * dt, single: d.single * dt, double: d.double * dt };
+  }
+  const f = (part: keyof ComponentDiffusivities) => integrate((t) => componentsAt(s.dopant, temperatureAt(st, t))[part], t0, t1, 2);
   return { neutral: f('neutral'), single: f('single'), double: f('double') };
 }
 
