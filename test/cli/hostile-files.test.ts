@@ -1,6 +1,7 @@
 import * as realFs from 'node:fs';
 import { join, resolve, sep } from 'node:path';
 import { afterEach, describe, expect, it, vi } from 'vitest';
+import { EnvironmentError, InputError } from '../../packages/cli/src/errors.ts';
 import { inside, writeAtomic } from '../../packages/cli/src/files.ts';
 import { edgewise, REPO, tempDir } from '../support/cli.ts';
 
@@ -9,7 +10,7 @@ import { edgewise, REPO, tempDir } from '../support/cli.ts';
  * of a whole one. Failures of the file system are simulated by wrapping node:fs: the wrapper
  * passes every call through unless a test arms it.
  */
-const fault = vi.hoisted(() => ({ write: null as null | 'half', rename: false }));
+const fault = vi.hoisted(() => ({ write: null as null | 'half' | 'denied', rename: false }));
 vi.mock('node:fs', async (importOriginal) => {
   const fs = await importOriginal<typeof import('node:fs')>();
   const wrapped = {
@@ -20,6 +21,10 @@ vi.mock('node:fs', async (importOriginal) => {
         const bytes = typeof data === 'string' ? Buffer.from(data) : Buffer.from(data.buffer, data.byteOffset, data.byteLength);
         fs.writeFileSync(path, bytes.subarray(0, bytes.length >> 1));
         throw Object.assign(new Error('ENOSPC: no space left on device, write'), { code: 'ENOSPC' });
+      }
+      if (fault.write === 'denied' && String(path).endsWith('.tmp')) {
+        // What a folder the user may not write to answers (root is not refused, so it is simulated).
+        throw Object.assign(new Error(`EACCES: permission denied, open '${path}'`), { code: 'EACCES', syscall: 'open', path: String(path) });
       }
       return (fs.writeFileSync as (...a: unknown[]) => void)(path, data, ...rest);
     },
@@ -93,10 +98,11 @@ describe('writeAtomic: a failed write leaves the old file whole', () => {
     return { dir, path };
   }
 
-  it('the disk fills halfway through: the error comes back, the old file is as it was, no temporary is left', () => {
+  it('the disk fills halfway through: one line naming the file, cause and remedy; the old file is as it was, no temporary is left', () => {
     const { dir, path } = setUp();
     fault.write = 'half';
-    expect(() => writeAtomic(path, NEW)).toThrow(/ENOSPC/);
+    expect(() => writeAtomic(path, NEW)).toThrow(new EnvironmentError(
+      `${path}: cannot be written: no space left on device; free some space, or choose a folder on another disk with --out`));
     expect(realFs.readFileSync(path, 'utf8')).toBe(OLD);
     expect(realFs.readdirSync(dir)).toEqual(['report.json']);
   });
@@ -114,7 +120,8 @@ describe('writeAtomic: a failed write leaves the old file whole', () => {
     const target = join(dir, 'field.npy');
     realFs.mkdirSync(target);
     realFs.writeFileSync(join(target, 'keep'), OLD);
-    expect(() => writeAtomic(target, NEW)).toThrow();
+    expect(() => writeAtomic(target, NEW)).toThrow(new InputError(
+      `${target}: cannot be written: it is a folder, not a file; move that folder away, or choose another folder with --out`));
     expect(realFs.readFileSync(join(target, 'keep'), 'utf8')).toBe(OLD);
     expect(realFs.readdirSync(dir).sort()).toEqual(['field.npy', 'report.json']);
   });
@@ -124,7 +131,8 @@ describe('writeAtomic: a failed write leaves the old file whole', () => {
     const { dir, path } = setUp();
     realFs.chmodSync(dir, 0o555);
     try {
-      expect(() => writeAtomic(path, NEW)).toThrow(/EACCES|EPERM/);
+      expect(() => writeAtomic(path, NEW)).toThrow(new InputError(
+        `${path}: cannot be written: permission denied; choose a folder you may write to with --out, or change its permissions`));
       expect(realFs.readFileSync(path, 'utf8')).toBe(OLD);
       expect(realFs.readdirSync(dir)).toEqual(['report.json']);
     } finally {
@@ -137,5 +145,44 @@ describe('writeAtomic: a failed write leaves the old file whole', () => {
     writeAtomic(path, NEW);
     expect(realFs.readFileSync(path, 'utf8')).toBe(NEW);
     expect(realFs.readdirSync(dir)).toEqual(['report.json']);
+  });
+});
+
+describe('main(): a write the file system refuses ends in one line and its exit code, and leaves no file half written', () => {
+  /** Runs the CLI's main() in this process (so that the wrapped node:fs applies) and returns its exit code and stderr. */
+  async function runMain(args: string[]) {
+    const { main } = await import('../../packages/cli/src/main.ts');
+    const written: string[] = [];
+    const spy = vi.spyOn(process.stderr, 'write').mockImplementation((chunk: string | Uint8Array) => { written.push(String(chunk)); return true; });
+    try {
+      return { code: await main(args), stderr: written.join('') };
+    } finally {
+      spy.mockRestore();
+    }
+  }
+
+  function setUp() {
+    const dir = tempDir('edgewise-main-fs-');
+    const recipe = join(dir, 'recipe.json');
+    realFs.copyFileSync(join(REPO, 'examples', 'base-resistor.json'), recipe);
+    return { recipe, out: resolve(dir, 'out') };
+  }
+
+  it('disk full (ENOSPC): exit 1, no stack; the file half written by the disk is removed', async () => {
+    const { recipe, out } = setUp();
+    fault.write = 'half';
+    const r = await runMain(['run', recipe, '--out', out, '--quiet', '--error-solves', '0']);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toBe(`edgewise: ${out}/field.npy: cannot be written: no space left on device; free some space, or choose a folder on another disk with --out\n`);
+    expect(walk(out)).toEqual([]);
+  });
+
+  it('permission denied (EACCES): exit 2, the path given is at fault', async () => {
+    const { recipe, out } = setUp();
+    fault.write = 'denied';
+    const r = await runMain(['run', recipe, '--out', out, '--quiet', '--error-solves', '0']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toBe(`edgewise: ${out}/field.npy: cannot be written: permission denied; choose a folder you may write to with --out, or change its permissions\n`);
+    expect(walk(out)).toEqual([]);
   });
 });

@@ -1,16 +1,68 @@
-import { mkdirSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { dirname, join, resolve, sep } from 'node:path';
+import { fileSystemError } from './errors.ts';
 
-/** Writes a file atomically: a temporary name in the same folder, then rename. */
+/**
+ * Writes a file atomically: a temporary name in the same folder, then rename. A write that
+ * fails leaves no temporary behind and comes back as one line (errors.ts) when the file
+ * system says why.
+ */
 export function writeAtomic(path: string, data: string | Uint8Array): void {
-  mkdirSync(dirname(path), { recursive: true });
   const temp = `${path}.${process.pid}.${Math.random().toString(36).slice(2)}.tmp`;
   try {
+    makeMissingFolders(dirname(path));
     writeFileSync(temp, data);
     renameSync(temp, path);
   } catch (e) {
-    rmSync(temp, { force: true });
-    throw e;
+    try {
+      rmSync(temp, { force: true });
+    } catch {
+      // No temporary could have been made: its folder is missing or is a file (ENOTDIR).
+    }
+    throw fileSystemError(e, 'write', path) ?? e;
+  }
+}
+
+/** Removes a file if it is there; a file system that refuses comes back as one line (errors.ts). */
+export function removeFile(path: string): void {
+  try {
+    rmSync(path, { force: true });
+  } catch (e) {
+    throw fileSystemError(e, 'write', path) ?? e;
+  }
+}
+
+/** Makes a folder and the missing folders above it; a refusal comes back as one line (errors.ts). */
+export function makeFolders(folder: string): void {
+  try {
+    makeMissingFolders(folder);
+  } catch (e) {
+    throw fileSystemError(e, 'write', folder) ?? e;
+  }
+}
+
+/**
+ * One folder at a time from the top: mkdirSync's recursive mode retries without end where a
+ * file system refuses new entries (it does so under /proc).
+ */
+function makeMissingFolders(folder: string): void {
+  const missing: string[] = [];
+  for (let p = folder; !existsSync(p) && dirname(p) !== p; p = dirname(p)) missing.push(p);
+  for (const p of missing.reverse()) {
+    try {
+      mkdirSync(p);
+    } catch (e) {
+      // Another writer (a sweep's other worker) made it first.
+      if ((e as NodeJS.ErrnoException).code !== 'EEXIST' || !isFolder(p)) throw e;
+    }
+  }
+}
+
+function isFolder(path: string): boolean {
+  try {
+    return statSync(path).isDirectory();
+  } catch {
+    return false;
   }
 }
 

@@ -5,7 +5,7 @@ import { schemaCommand, SCHEMA_USAGE } from './commands/schema.ts';
 import { spacingCommand, SPACING_USAGE } from './commands/spacing.ts';
 import { viewCommand, VIEW_USAGE } from './commands/view.ts';
 import { sweepCommand, SWEEP_USAGE } from './commands/sweep.ts';
-import { InputError, UsageError } from './errors.ts';
+import { EnvironmentError, fileSystemError, InputError, UsageError } from './errors.ts';
 
 type Command = (args: string[]) => number | Promise<number>;
 
@@ -38,6 +38,21 @@ export function parseArgsMessage(e: Error): string {
   return sentence.charAt(0).toLowerCase() + sentence.slice(1);
 }
 
+/** System calls that change the file system; a failure of any other is one of reading. */
+const WRITING_CALLS = new Set(['mkdir', 'rename', 'write', 'unlink', 'rmdir', 'rm', 'copyfile', 'symlink', 'link', 'chmod', 'utime', 'ftruncate']);
+
+/**
+ * A file-system error that reached the top without a caller naming what it was doing
+ * (files.ts and read-recipe.ts name it themselves), as one line from the path and system call
+ * Node reports; null for any other error. ENOENT is left alone: a file the program expects
+ * that is missing (its own bundle) is an internal failure, not bad input.
+ */
+export function strayFileSystemError(e: unknown): InputError | EnvironmentError | null {
+  const err = e as NodeJS.ErrnoException | null;
+  if (typeof err?.path !== 'string' || typeof err.syscall !== 'string' || err.code === 'ENOENT') return null;
+  return fileSystemError(err, WRITING_CALLS.has(err.syscall) ? 'write' : 'read', err.path);
+}
+
 /** Runs one command; returns the exit code (0 ok, 2 bad input, 1 internal failure). */
 export async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
@@ -68,6 +83,11 @@ export async function main(argv: string[]): Promise<number> {
     if (e instanceof SolverError) {
       process.stderr.write(`edgewise: solver failed: ${e.message}\n`);
       return 1;
+    }
+    const fileSystem = e instanceof EnvironmentError ? e : strayFileSystemError(e);
+    if (fileSystem) {
+      process.stderr.write(`edgewise: ${fileSystem.message}\n`);
+      return fileSystem instanceof InputError ? 2 : 1;
     }
     process.stderr.write(`edgewise: internal error: ${(e as Error).stack ?? e}\n`);
     return 1;

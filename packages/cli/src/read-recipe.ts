@@ -1,7 +1,7 @@
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { extname } from 'node:path';
 import { parseAllDocuments } from 'yaml';
-import { InputError } from './errors.ts';
+import { fileSystemError, InputError } from './errors.ts';
 
 /** Largest recipe file accepted; a recipe is a few kilobytes. */
 export const MAX_RECIPE_BYTES = 1 << 20;
@@ -29,7 +29,8 @@ function readText(path: string): string {
   try {
     stat = statSync(path);
   } catch (e) {
-    throw new InputError(`${path}: ${(e as NodeJS.ErrnoException).code === 'ENOENT' ? 'no such recipe file' : `cannot be read (${reason(e)})`}`);
+    if ((e as NodeJS.ErrnoException).code === 'ENOENT') throw new InputError(`${path}: no such recipe file`);
+    throw cannotRead(path, e);
   }
   if (stat.isDirectory()) throw new InputError(`${path}: is a folder, not a recipe file`);
   if (stat.size > MAX_RECIPE_BYTES) throw new InputError(`${path}: ${stat.size} bytes is larger than a recipe can be (at most ${MAX_RECIPE_BYTES})`);
@@ -53,7 +54,7 @@ function readAtMost(path: string, limit: number): Buffer {
   try {
     fd = openSync(path, 'r');
   } catch (e) {
-    throw new InputError(`${path}: cannot be read (${reason(e)})`);
+    throw cannotRead(path, e);
   }
   try {
     const buffer = Buffer.alloc(limit);
@@ -65,15 +66,16 @@ function readAtMost(path: string, limit: number): Buffer {
     }
     return buffer.subarray(0, used);
   } catch (e) {
-    throw new InputError(`${path}: cannot be read (${reason(e)})`);
+    throw cannotRead(path, e);
   } finally {
     closeSync(fd);
   }
 }
 
-function reason(e: unknown): string {
+/** One line for a recipe file the system will not give: in words where errors.ts knows the cause, else its code. */
+function cannotRead(path: string, e: unknown): Error {
   const err = e as NodeJS.ErrnoException;
-  return err.code ?? err.message.split('\n')[0];
+  return fileSystemError(e, 'read', path) ?? new InputError(`${path}: cannot be read (${err.code ?? err.message.split('\n')[0]})`);
 }
 
 /** Index of the first byte that does not begin or continue a valid UTF-8 sequence. */

@@ -1,9 +1,10 @@
-import { existsSync, mkdirSync, statSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { basename, extname, join, resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import type { PlanLimits } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
+import { makeFolders } from '../files.ts';
 import { fmtLength, fmtRatio, fmtSci, table } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits } from '../limits.ts';
 import { progressReporter } from '../progress.ts';
@@ -100,7 +101,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
   const mine = matrix.runs.filter((r) => inShard(r.id, shard));
   const stem = sweepStem(shard);
   const bundle = workerBundle();
-  mkdirSync(out, { recursive: true });
+  makeFolders(out);
   removeStaleTemps(out, [`${stem}.csv`, `${stem}.json`]);
 
   const rows = new Map<number, RunRow>();

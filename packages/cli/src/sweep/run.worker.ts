@@ -1,9 +1,8 @@
-import { rmSync } from 'node:fs';
 import { parentPort, workerData } from 'node:worker_threads';
 import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/umd/node-adapter.js';
 import { analyze, coarseReports, parseRecipe, planRecipe, simulate, withErrorBars } from '@edgewise/solver2d';
-import { inside, writeAtomic } from '../files.ts';
+import { inside, removeFile, writeAtomic } from '../files.ts';
 import { withLimitHint } from '../limits.ts';
 import { writeRunFolder } from '../output.ts';
 import { PROGRESS_OFFSET, RECIPE_FILE, STOP_INDEX, type RunOutcome, type RunTask, type RunWorkerApi } from './task.ts';
@@ -20,7 +19,7 @@ const progress = new Float64Array(control, PROGRESS_OFFSET, 1);
 const api: RunWorkerApi = {
   run(task: RunTask): RunOutcome {
     // An old marker would vouch for files this run is about to replace.
-    rmSync(inside(task.folder, RECIPE_FILE), { force: true });
+    removeFile(inside(task.folder, RECIPE_FILE));
     progress[0] = 0;
     const plan = withLimitHint(task.limits, () => planRecipe(parseRecipe(task.recipe), task.limits));
     const shouldStop = () => Atomics.load(stop, STOP_INDEX) !== 0;
