@@ -1,13 +1,14 @@
-import { copyFileSync, existsSync, mkdirSync, readdirSync, realpathSync, writeFileSync } from 'node:fs';
+import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, realpathSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { EnvironmentError, fileSystemError, InputError } from '../../packages/cli/src/errors.ts';
+import { inside } from '../../packages/cli/src/files.ts';
 import { strayFileSystemError } from '../../packages/cli/src/main.ts';
 import { edgewise, REPO, tempDir } from '../support/cli.ts';
 
 /**
- * Hostile paths: output folders that cannot be written, recipe paths that cannot be read.
- * Each answer is one line with its exit code;
+ * Hostile paths: links under an output folder that lead out of it, output folders that cannot
+ * be written, recipe paths that cannot be read. Each answer is one line with its exit code;
  * expected lines are the messages the program is meant to give, built from the paths of the case.
  * Temporary folders are taken by their real path, so that the paths in the messages are those
  * the program sees.
@@ -19,6 +20,140 @@ function recipeIn(dir: string): string {
   copyFileSync(join(REPO, 'examples', 'base-resistor.json'), path);
   return path;
 }
+
+/** Fields of one CSV line, quotes honoured (RFC 4180). */
+function csvFields(line: string): string[] {
+  const fields: string[] = [];
+  let field = '';
+  let quoted = false;
+  for (let k = 0; k < line.length; k++) {
+    const ch = line[k];
+    if (quoted && ch === '"' && line[k + 1] === '"') { field += '"'; k++; }
+    else if (ch === '"') quoted = !quoted;
+    else if (ch === ',' && !quoted) { fields.push(field); field = ''; }
+    else field += ch;
+  }
+  fields.push(field);
+  return fields;
+}
+
+describe('inside(): a symbolic link under the folder cannot lead a write out of it', () => {
+  it('a run folder that is a link to a folder outside', () => {
+    const dir = base();
+    mkdirSync(join(dir, 'out'));
+    mkdirSync(join(dir, 'elsewhere'));
+    symlinkSync(join(dir, 'elsewhere'), join(dir, 'out', 'run1'));
+    expect(() => inside(join(dir, 'out'), 'run1/field.npy')).toThrow(new InputError(
+      `refusing to write outside the output folder ${dir}/out: run1/field.npy (run1 leads to ${dir}/elsewhere through a symbolic link)`));
+  });
+
+  it('a link that leads to a place outside that does not exist yet', () => {
+    const dir = base();
+    mkdirSync(join(dir, 'out'));
+    symlinkSync(join(dir, 'not-yet', 'deeper'), join(dir, 'out', 'run1'));
+    expect(() => inside(join(dir, 'out'), 'run1/report.json')).toThrow(new InputError(
+      `refusing to write outside the output folder ${dir}/out: run1/report.json (run1 leads to ${dir}/not-yet/deeper through a symbolic link)`));
+    expect(existsSync(join(dir, 'not-yet'))).toBe(false);
+  });
+
+  it('a file that is a link to a file outside', () => {
+    const dir = base();
+    mkdirSync(join(dir, 'out'));
+    writeFileSync(join(dir, 'victim.json'), 'keep');
+    symlinkSync(join(dir, 'victim.json'), join(dir, 'out', 'report.json'));
+    expect(() => inside(join(dir, 'out'), 'report.json')).toThrow(new InputError(
+      `refusing to write outside the output folder ${dir}/out: report.json leads to ${dir}/victim.json through a symbolic link`));
+  });
+
+  it('a relative link that climbs out (../../elsewhere)', () => {
+    const dir = base();
+    mkdirSync(join(dir, 'out', 'a'), { recursive: true });
+    symlinkSync('../../elsewhere', join(dir, 'out', 'a', 'run1'));
+    expect(() => inside(join(dir, 'out'), 'a/run1/x.npy')).toThrow(new InputError(
+      `refusing to write outside the output folder ${dir}/out: a/run1/x.npy (a/run1 leads to ${dir}/elsewhere through a symbolic link)`));
+  });
+
+  it('links that lead round in a loop are refused, not followed without end', () => {
+    const dir = base();
+    mkdirSync(join(dir, 'out'));
+    symlinkSync(join(dir, 'out', 'b'), join(dir, 'out', 'a'));
+    symlinkSync(join(dir, 'out', 'a'), join(dir, 'out', 'b'));
+    expect(() => inside(join(dir, 'out'), 'a/field.npy')).toThrow(new InputError(
+      `refusing to write outside the output folder ${dir}/out: a/field.npy (symbolic links on the way lead round in a loop)`));
+  });
+
+  it('a link from one place under the folder to another under it is allowed', () => {
+    const dir = base();
+    mkdirSync(join(dir, 'out', 'real-run'), { recursive: true });
+    symlinkSync(join(dir, 'out', 'real-run'), join(dir, 'out', 'run1'));
+    expect(inside(join(dir, 'out'), 'run1/field.npy')).toBe(join(dir, 'out', 'run1', 'field.npy'));
+  });
+
+  it('an output folder that is itself a link is where the user sent the files: allowed', () => {
+    const dir = base();
+    mkdirSync(join(dir, 'storage'));
+    symlinkSync(join(dir, 'storage'), join(dir, 'out'));
+    expect(inside(join(dir, 'out'), 'run-0001/field.npy')).toBe(join(dir, 'out', 'run-0001', 'field.npy'));
+  });
+
+  it('an output folder that does not exist yet: its files are inside it', () => {
+    const dir = base();
+    expect(inside(join(dir, 'new', 'out'), 'run-0001/field.npy')).toBe(join(dir, 'new', 'out', 'run-0001', 'field.npy'));
+  });
+});
+
+describe('the real binary: links under --out that lead outside are refused, nothing is written outside', () => {
+  it('sweep: a run folder that is a link to a folder outside stops the sweep before anything is written (exit 2)', () => {
+    const dir = base();
+    const recipe = recipeIn(dir);
+    const out = join(dir, 'out');
+    const elsewhere = join(dir, 'elsewhere');
+    mkdirSync(out);
+    mkdirSync(elsewhere);
+    symlinkSync(elsewhere, join(out, 'run-0001'));
+    const r = edgewise(['sweep', recipe, '--widths', '4,5', '--out', out, '--jobs', '1', '--error-solves', '0', '--quiet']);
+    expect(r.code, r.stderr).toBe(2);
+    expect(r.stderr).toBe(`edgewise: refusing to write outside the output folder ${out}: run-0001 leads to ${elsewhere} through a symbolic link\n`);
+    expect(r.stdout).toBe('');
+    expect(readdirSync(elsewhere)).toEqual([]);
+    expect(readdirSync(out)).toEqual(['run-0001']);
+  });
+
+  it('sweep: a link inside a run folder is refused by the run that writes there; that run fails, the other finishes (exit 3)', () => {
+    const dir = base();
+    const recipe = recipeIn(dir);
+    const out = join(dir, 'out');
+    const victim = join(dir, 'victim.json');
+    writeFileSync(victim, 'keep\n');
+    mkdirSync(join(out, 'run-0001'), { recursive: true });
+    symlinkSync(victim, join(out, 'run-0001', 'report.json'));
+    const r = edgewise(['sweep', recipe, '--widths', '4,5', '--out', out, '--jobs', '1', '--error-solves', '0', '--quiet']);
+    expect(r.code, r.stderr).toBe(3);
+    const error = `InputError: refusing to write outside the output folder ${out}: run-0001/report.json leads to ${victim} through a symbolic link`;
+    expect(r.stdout).toContain(`\nrun 1 failed: ${error}\n`);
+    expect(readFileSync(victim, 'utf8')).toBe('keep\n');
+    const rows = readFileSync(join(out, 'sweep.csv'), 'utf8').trimEnd().split('\n').map(csvFields);
+    const header = rows[0];
+    expect(rows.slice(1).map((row) => [row[header.indexOf('status')], row[header.indexOf('error')]])).toEqual([['failed', error], ['ok', '']]);
+    expect(existsSync(join(out, 'run-0002', 'report.json'))).toBe(true);
+    // The failed run is not marked finished, so --resume redoes it.
+    expect(existsSync(join(out, 'run-0001', 'recipe.json'))).toBe(false);
+  });
+
+  it('run: a report.json under --out that is a link to a file outside (exit 2, the file outside unchanged)', () => {
+    const dir = base();
+    const recipe = recipeIn(dir);
+    const out = join(dir, 'out');
+    const victim = join(dir, 'victim.json');
+    writeFileSync(victim, 'keep\n');
+    mkdirSync(out);
+    symlinkSync(victim, join(out, 'report.json'));
+    const r = edgewise(['run', recipe, '--out', out, '--error-solves', '0', '--quiet']);
+    expect(r.code, r.stderr).toBe(2);
+    expect(r.stderr).toBe(`edgewise: refusing to write outside the output folder ${out}: report.json leads to ${victim} through a symbolic link\n`);
+    expect(readFileSync(victim, 'utf8')).toBe('keep\n');
+  });
+});
 
 describe('output folders that cannot be written: one line naming the path, the cause and what to do', () => {
   // Tests run as root in CI, where permissions stop no write; a file where a folder must be

@@ -1,6 +1,6 @@
-import { existsSync, mkdirSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
-import { dirname, join, resolve, sep } from 'node:path';
-import { fileSystemError } from './errors.ts';
+import { existsSync, lstatSync, mkdirSync, readlinkSync, realpathSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { basename, dirname, join, relative, resolve, sep } from 'node:path';
+import { fileSystemError, InputError } from './errors.ts';
 
 /**
  * Writes a file atomically: a temporary name in the same folder, then rename. A write that
@@ -66,12 +66,75 @@ function isFolder(path: string): boolean {
   }
 }
 
-/** A path inside `folder`; refuses names that would climb out of it. */
+/**
+ * The path of `name` inside `folder`, refusing one that would lie outside it: a name that
+ * climbs out (`../x`), or a symbolic link under the folder that leads elsewhere
+ * (`out/run-0001 -> /tmp/x`). Both are compared where they really are: the real path of the
+ * deepest part that exists, with the rest of the path after it. The check sees the folder as
+ * it is when called: a link swapped in between the check and the write is not seen.
+ */
 export function inside(folder: string, name: string): string {
   const root = resolve(folder);
   const path = resolve(join(root, name));
-  if (path !== root && !path.startsWith(root + sep)) throw new Error(`refusing to write outside ${root}: ${name}`);
-  return path;
+  const refusal = (why: string) => new InputError(`refusing to write outside the output folder ${root}: ${name}${why}`);
+  if (!within(root, path)) throw refusal('');
+  const realRoot = realLocation(root);
+  const real = realLocation(path);
+  if (realRoot === null || real === null) throw refusal(' (symbolic links on the way lead round in a loop)');
+  if (within(realRoot, real)) return path;
+  // Name the first part under the folder that leads out: that is the link to remove.
+  let part = root;
+  for (const piece of relative(root, path).split(sep)) {
+    part = join(part, piece);
+    const there = realLocation(part);
+    if (there === null || within(realRoot, there)) continue;
+    const link = relative(root, part);
+    throw refusal(link === relative(root, path) ? ` leads to ${there} through a symbolic link` : ` (${link} leads to ${there} through a symbolic link)`);
+  }
+  throw refusal(` (it leads to ${real})`);
+}
+
+/** `path` is `root` or lies under it (a whole path segment, not a prefix of the text: /tmp/run-2 is not under /tmp/run). */
+function within(root: string, path: string): boolean {
+  return path === root || path.startsWith(root.endsWith(sep) ? root : root + sep);
+}
+
+/** Links followed by hand before a chain counts as a loop (Linux follows at most 40 in one lookup). */
+const MAX_LINK_HOPS = 40;
+
+/**
+ * Where an absolute path really is: the real path of its deepest part that exists, with the
+ * rest appended. A link that leads nowhere (realpath refuses it) is followed as it reads;
+ * null for links that lead round in a loop.
+ */
+function realLocation(path: string, hops = 0): string | null {
+  const rest: string[] = [];
+  let existing = path;
+  while (!present(existing)) {
+    rest.unshift(basename(existing));
+    existing = dirname(existing);
+  }
+  try {
+    return join(realpathSync(existing), ...rest);
+  } catch (e) {
+    if (!lstatSync(existing).isSymbolicLink()) throw e;
+    if (hops >= MAX_LINK_HOPS) return null;
+    const parent = realLocation(dirname(existing), hops + 1);
+    return parent === null ? null : realLocation(join(resolve(parent, readlinkSync(existing)), ...rest), hops + 1);
+  }
+}
+
+/** Something (a file, a folder, a link, even one that leads nowhere) is at `path`. */
+function present(path: string): boolean {
+  try {
+    lstatSync(path);
+    return true;
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    // ENOTDIR: a file stands where a folder on the way should be; ELOOP: a link on the way loops.
+    if (code === 'ENOENT' || code === 'ENOTDIR' || code === 'ELOOP') return false;
+    throw e;
+  }
 }
 
 /**

@@ -1,15 +1,19 @@
+import { join } from 'node:path';
 import type { Analysis } from '@edgewise/solver2d';
 import { stackLayers } from '@edgewise/solver2d';
 import { encodeNpy, inside, writeAtomic } from './files.ts';
 import { contourSvg } from './svg.ts';
 
-/** The files of one run folder (contracts in DEVELOPERS.md). Returns the names written. */
-export function writeRunFolder(folder: string, analysis: Analysis): string[] {
+/**
+ * The files of one run folder (contracts in DEVELOPERS.md): `dir` inside the output folder
+ * `root`, which no file may leave (files.ts, inside). Returns the names written.
+ */
+export function writeRunFolder(root: string, analysis: Analysis, dir = ''): string[] {
   const { report, field } = analysis;
   const { mesh } = field;
   const written: string[] = [];
   const put = (name: string, data: string | Uint8Array) => {
-    writeAtomic(inside(folder, name), data);
+    writeAtomic(inside(root, join(dir, name)), data);
     written.push(name);
   };
   put('field.npy', encodeNpy(stackLayers(field), [field.names.length, mesh.nz, mesh.nx]));

@@ -4,7 +4,7 @@ import { basename, extname, join, resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import type { PlanLimits } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
-import { makeFolders } from '../files.ts';
+import { inside, makeFolders } from '../files.ts';
 import { fmtLength, fmtRatio, fmtSci, table } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits } from '../limits.ts';
 import { progressReporter } from '../progress.ts';
@@ -101,6 +101,8 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
   const mine = matrix.runs.filter((r) => inShard(r.id, shard));
   const stem = sweepStem(shard);
   const bundle = workerBundle();
+  // A run folder that leads outside --out (a symbolic link) is refused before anything is written.
+  const folders = new Map(mine.map((r) => [r.id, inside(out, r.dir)]));
   makeFolders(out);
   removeStaleTemps(out, [`${stem}.csv`, `${stem}.json`]);
 
@@ -108,7 +110,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
   const toDo: SweepRun[] = [];
   let reused = 0;
   for (const run of mine) {
-    const folder = join(out, run.dir);
+    const folder = folders.get(run.id)!;
     removeStaleTemps(folder, null);
     const windows = options.resume ? finishedRun(folder, run.recipeSha256, options.errorSolves) : null;
     if (windows) {
@@ -178,7 +180,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
       const recipe = runRecipe(matrix.base, matrix.parameters, run.values);
       const row = rows.get(run.id)!;
       try {
-        const outcome = await currentPool.run({ id: run.id, folder: resolve(out, run.dir), recipe, recipeText: `${JSON.stringify(recipe, null, 2)}\n`, errorSolves: options.errorSolves, limits: options.limits });
+        const outcome = await currentPool.run({ id: run.id, out: resolve(out), dir: run.dir, recipe, recipeText: `${JSON.stringify(recipe, null, 2)}\n`, errorSolves: options.errorSolves, limits: options.limits });
         row.windows = outcome.windows;
         row.status = 'ok';
         for (const w of outcome.warnings) warnings.push(`run ${run.id}: ${w}`);

@@ -1,3 +1,4 @@
+import { join } from 'node:path';
 import { parentPort, workerData } from 'node:worker_threads';
 import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/umd/node-adapter.js';
@@ -19,7 +20,7 @@ const progress = new Float64Array(control, PROGRESS_OFFSET, 1);
 const api: RunWorkerApi = {
   run(task: RunTask): RunOutcome {
     // An old marker would vouch for files this run is about to replace.
-    removeFile(inside(task.folder, RECIPE_FILE));
+    removeFile(inside(task.out, join(task.dir, RECIPE_FILE)));
     progress[0] = 0;
     const plan = withLimitHint(task.limits, () => planRecipe(parseRecipe(task.recipe), task.limits));
     const shouldStop = () => Atomics.load(stop, STOP_INDEX) !== 0;
@@ -36,8 +37,8 @@ const api: RunWorkerApi = {
       });
       analysis.report = withErrorBars([analysis.report, ...reports], plan.recipe);
     }
-    writeRunFolder(task.folder, analysis);
-    writeAtomic(inside(task.folder, RECIPE_FILE), task.recipeText);
+    writeRunFolder(task.out, analysis, task.dir);
+    writeAtomic(inside(task.out, join(task.dir, RECIPE_FILE)), task.recipeText);
     progress[0] = 1;
     return { windows: analysis.report.windows, warnings: analysis.report.warnings };
   },

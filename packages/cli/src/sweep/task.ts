@@ -3,8 +3,10 @@ import type { PlanLimits, WindowReport } from '@edgewise/solver2d';
 /** What the main thread sends a worker for one run, and what comes back. */
 export interface RunTask {
   id: number;
-  /** the run folder, absolute */
-  folder: string;
+  /** the sweep folder, absolute: no file of the run may lie outside it */
+  out: string;
+  /** the run folder, relative to `out` */
+  dir: string;
   recipe: Record<string, unknown>;
   /** the recipe as written to the folder's recipe.json */
   recipeText: string;
