@@ -4,11 +4,12 @@ import { describe, expect, it } from 'vitest';
 import { EnvironmentError, fileSystemError, InputError } from '../../packages/cli/src/errors.ts';
 import { inside } from '../../packages/cli/src/files.ts';
 import { strayFileSystemError } from '../../packages/cli/src/main.ts';
+import { repeatedJsonKey } from '../../packages/cli/src/read-recipe.ts';
 import { edgewise, REPO, tempDir } from '../support/cli.ts';
 
 /**
  * Hostile paths: links under an output folder that lead out of it, output folders that cannot
- * be written, recipe paths that cannot be read. Each answer is one line with its exit code;
+ * be written, and recipes that give a key twice. Each answer is one line with its exit code;
  * expected lines are the messages the program is meant to give, built from the paths of the case.
  * Temporary folders are taken by their real path, so that the paths in the messages are those
  * the program sees.
@@ -19,6 +20,10 @@ function recipeIn(dir: string): string {
   const path = join(dir, 'recipe.json');
   copyFileSync(join(REPO, 'examples', 'base-resistor.json'), path);
   return path;
+}
+
+function lines(text: string): string[] {
+  return text.split('\n').filter((l) => l !== '');
 }
 
 /** Fields of one CSV line, quotes honoured (RFC 4180). */
@@ -248,5 +253,59 @@ describe('fileSystemError: what each file-system error says, and whose fault it 
     expect(denied?.message).toBe("shards: cannot be read: permission denied; check the file's permissions");
     // A missing file the program itself expects is an internal failure, left as it is.
     expect(strayFileSystemError(Object.assign(new Error('ENOENT'), { code: 'ENOENT', syscall: 'open', path: 'dist/x' }))).toBeNull();
+  });
+});
+
+describe('a key given twice in a recipe: one line naming the key, where it sits and both places, exit 2', () => {
+  const TEXT = readFileSync(join(REPO, 'examples', 'base-resistor.json'), 'utf8');
+
+  /** Line and column (from 1) of the n-th (from 0) occurrence of `find` in `text`. */
+  function at(text: string, find: string, n: number): string {
+    let offset = -1;
+    for (let k = 0; k <= n; k++) offset = text.indexOf(find, offset + 1);
+    if (offset < 0) throw new Error(`test set-up: ${find} is not in the text ${n + 1} times`);
+    const before = text.slice(0, offset).split('\n');
+    return `line ${before.length}, column ${before[before.length - 1].length + 1}`;
+  }
+
+  /** Each case: the file, the key, where it sits, and the text and occurrence (from 0) of each of its two places. */
+  const CASES: { name: string; file: string; text: string; key: string; place: string; first: [string, number]; again: [string, number] }[] = [
+    { name: 'JSON, at the top level', file: 'top.json', key: 'title', place: 'at the top level', first: ['"title"', 0], again: ['"title"', 1],
+      text: TEXT.replace('"substrate"', '"title": "again",\n  "substrate"') },
+    // Step 0 has its own "minutes": the first of step 1 is the second in the text.
+    { name: 'JSON, in a step', file: 'step.json', key: 'minutes', place: 'in steps[1]', first: ['"minutes"', 1], again: ['"minutes"', 2],
+      text: TEXT.replace('"minutes": 60 }', '"minutes": 60,\n      "minutes": 90 }') },
+    { name: 'JSON, one level down, written with an escape ("\\u0064opant" is "dopant")', file: 'escape.json', key: 'dopant', place: 'in substrate',
+      first: ['"dopant"', 0], again: ['"\\u0064opant"', 0], text: TEXT.replace('"concentrationCm3"', '"\\u0064opant": "N", "concentrationCm3"') },
+    { name: 'YAML, at the top level', file: 'top.yaml', key: 'title', place: 'at the top level', first: ['title', 0], again: ['title', 1],
+      text: 'title: a\nsubstrate: {dopant: P, concentrationCm3: 1e15}\ntitle: b\n' },
+    { name: 'YAML, in a step, once quoted', file: 'step.yaml', key: 'minutes', place: 'in steps[1]', first: ['minutes', 1], again: ['"minutes"', 0],
+      text: 'steps:\n  - kind: predeposition\n    minutes: 30\n  - kind: drive-in\n    minutes: 60\n    "minutes": 90\n' },
+    { name: 'YAML, a number key and the same as text (both become "1")', file: 'number.yaml', key: '1', place: 'in dopants', first: ['1:', 0], again: ['"1"', 0],
+      text: 'dopants:\n  1: {type: donor}\n  "1": {type: acceptor}\n' },
+  ];
+  const dir = base();
+  for (const c of CASES) {
+    it(c.name, () => {
+      const path = join(dir, c.file);
+      writeFileSync(path, c.text);
+      const out = join(dir, `out-${c.file}`);
+      const r = edgewise(['run', path, '--out', out, '--quiet']);
+      expect(r.code, r.stderr).toBe(2);
+      const line = `edgewise: ${path}: the key ${JSON.stringify(c.key)} appears twice ${c.place} (${at(c.text, ...c.again)}; first at ${at(c.text, ...c.first)})`;
+      expect(lines(r.stderr)).toEqual([line]);
+      expect(existsSync(out)).toBe(false);
+    });
+  }
+
+  it('the scanner: paths through lists and objects, keys in strings and escapes not mistaken for keys', () => {
+    expect(repeatedJsonKey('{"a":[{"b":1},{"b":1,"c":[[{"d":1,"d":2}]]}]}')).toMatchObject({ path: ['a', 1, 'c', 0, 0], key: 'd' });
+    // The same key in sibling objects, or at two levels, is not given twice.
+    expect(repeatedJsonKey('[{"a":1},{"a":2},{"a":{"a":3}}]')).toBeNull();
+    // Quotes, braces and commas inside strings are text, not structure.
+    expect(repeatedJsonKey('{"t":"\\"a\\":1, {\\"a\\":2}","a":1,"q\\\\":"}"}')).toBeNull();
+    expect(repeatedJsonKey('{"t":"x\\\\","t":"y"}')).toMatchObject({ path: [], key: 't', first: 1, again: 11 });
+    // Nesting far past what a recipe holds is scanned without recursion.
+    expect(repeatedJsonKey(`${'['.repeat(100_000)}{"k":1,"k":2}${']'.repeat(100_000)}`)?.path).toHaveLength(100_000);
   });
 });

@@ -63,7 +63,7 @@ const CASES: Case[] = [
   { name: 'a bare word where a value goes', file: 'token.json', content: '{"title": tru}', line: '{file}: is not valid JSON: unexpected "}"' },
   { name: 'malformed YAML', file: 'flow.yaml', content: 'title: [1, 2\nsubstrate: 3\n',
     line: '{file}: is not valid YAML: flow sequence in block collection must be sufficiently indented and end with a ] at line 2, column 1' },
-  { name: 'a YAML key given twice', file: 'twice.yaml', content: 'title: a\ntitle: b\n', line: '{file}: is not valid YAML: map keys must be unique at line 2, column 1' },
+  { name: 'a YAML key given twice', file: 'twice.yaml', content: 'title: a\ntitle: b\n', line: '{file}: the key "title" appears twice at the top level (line 2, column 1; first at line 1, column 1)' },
   { name: 'two YAML documents', file: 'two.yaml', content: 'title: a\n---\ntitle: b\n', line: '{file}: is not valid YAML: holds 2 documents (each "---" line starts one); a recipe is one' },
   { name: 'a YAML tag of its own', file: 'tag.yaml', content: 'title: !shell ls\n', line: '{file}: is not valid YAML: unresolved tag: !shell at line 1, column 8' },
   { name: 'YAML binary data', file: 'binary.yaml', content: 'title: !!binary aGVsbG8=\n',

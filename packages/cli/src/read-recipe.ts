@@ -1,6 +1,6 @@
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { extname } from 'node:path';
-import { parseAllDocuments } from 'yaml';
+import { isMap, isPair, isScalar, isSeq, parseAllDocuments, type Document } from 'yaml';
 import { fileSystemError, InputError } from './errors.ts';
 
 /** Largest recipe file accepted; a recipe is a few kilobytes. */
@@ -116,11 +116,78 @@ function lineColumn(text: string, offset: number): string {
 }
 
 function parseJsonRecipe(path: string, text: string): unknown {
+  let value: unknown;
   try {
-    return JSON.parse(text);
+    value = JSON.parse(text);
   } catch (e) {
     throw new InputError(`${path}: is not valid JSON: ${jsonReason((e as Error).message, text)}`);
   }
+  const twice = repeatedJsonKey(text);
+  if (twice) throw repeatedKeyError(path, text, twice);
+  return value;
+}
+
+/** A key given twice in one object: where the object is, the key, and where both stand in the text. */
+interface RepeatedKey {
+  path: (string | number)[];
+  key: string;
+  first: number;
+  again: number;
+}
+
+/** A JSON object or list the scanner is inside, and where it sits in the one around it. */
+interface Level {
+  /** keys seen so far with their offsets; null for a list */
+  keys: Map<string, number> | null;
+  /** the key of the member being read (null while the next string is a key), or the list index */
+  at: string | number | null;
+}
+
+/**
+ * The first key that appears twice in one object of a JSON text (JSON.parse keeps the last
+ * silently), or null. The text is known to parse, so tracking strings, objects and lists is
+ * enough: a string right after `{` or `,` in an object is a key. Keys are compared decoded
+ * ("\u0061" is "a"). The levels are kept in a list, not on the call stack, so that nesting
+ * of any depth is scanned.
+ */
+export function repeatedJsonKey(text: string): RepeatedKey | null {
+  const levels: Level[] = [];
+  for (let k = 0; k < text.length; k++) {
+    const c = text.charCodeAt(k);
+    const top = levels.length > 0 ? levels[levels.length - 1] : null;
+    if (c === QUOTE) {
+      const start = k;
+      for (k++; text.charCodeAt(k) !== QUOTE; k++) if (text.charCodeAt(k) === BACKSLASH) k++;
+      if (top?.keys && top.at === null) {
+        const key = JSON.parse(text.slice(start, k + 1)) as string;
+        const first = top.keys.get(key);
+        // Each object or list sits at the member its parent is reading.
+        if (first !== undefined) return { path: levels.slice(0, -1).map((l) => l.at!), key, first, again: start };
+        top.keys.set(key, start);
+        top.at = key;
+      }
+    } else if (c === OPEN_BRACE || c === OPEN_BRACKET) {
+      levels.push({ keys: c === OPEN_BRACE ? new Map() : null, at: c === OPEN_BRACE ? null : 0 });
+    } else if (c === CLOSE_BRACE || c === CLOSE_BRACKET) {
+      levels.pop();
+    } else if (c === COMMA && top) {
+      top.at = top.keys ? null : (top.at as number) + 1;
+    }
+  }
+  return null;
+}
+
+const QUOTE = 0x22;
+const BACKSLASH = 0x5c;
+const COMMA = 0x2c;
+const OPEN_BRACE = 0x7b;
+const CLOSE_BRACE = 0x7d;
+const OPEN_BRACKET = 0x5b;
+const CLOSE_BRACKET = 0x5d;
+
+function repeatedKeyError(path: string, text: string, { path: where, key, first, again }: RepeatedKey): InputError {
+  const place = where.length === 0 ? 'at the top level' : `in ${fieldPath(where)}`;
+  return new InputError(`${path}: the key ${JSON.stringify(key)} appears twice ${place} (${lineColumn(text, again)}; first at ${lineColumn(text, first)})`);
 }
 
 /** V8's JSON messages, with the position as a line and column and without the quoted source. */
@@ -142,7 +209,8 @@ function lowerFirst(s: string): string {
 
 function parseYamlRecipe(path: string, text: string): unknown {
   const fail = (what: string) => new InputError(`${path}: is not valid YAML: ${what}`);
-  const docs = parseAllDocuments(text, { logLevel: 'silent' });
+  // Keys given twice are found below, to name them and where they sit; the library's own check says neither.
+  const docs = parseAllDocuments(text, { logLevel: 'silent', uniqueKeys: false });
   if (!Array.isArray(docs) || docs.length === 0) throw new InputError(`${path}: is empty (nothing but comments)`);
   if (docs.length > 1) throw fail(`holds ${docs.length} documents (each "---" line starts one); a recipe is one`);
   const doc = docs[0];
@@ -153,6 +221,8 @@ function parseYamlRecipe(path: string, text: string): unknown {
     }
     throw fail(lowerFirst(problem.message.split('\n')[0].replace(/:\s*$/, '')));
   }
+  const twice = repeatedYamlKey(doc);
+  if (twice) throw repeatedKeyError(path, text, twice);
   try {
     return doc.toJS({ maxAliasCount: MAX_YAML_ALIASES });
   } catch (e) {
@@ -164,10 +234,45 @@ function parseYamlRecipe(path: string, text: string): unknown {
   }
 }
 
-/** `steps[0].minutes`; a long path is cut after a few steps, as `steps[0][0][0]…`. */
+/**
+ * The key that appears twice in one mapping of a YAML document, earliest in the text (as the
+ * JSON scanner finds it), or null. Keys are compared as the recipe will hold them, as text
+ * (`1` and `"1"` both become "1"); a key that is itself a list or a mapping is left to the
+ * recipe check, which knows no such key. Aliases are not followed (their anchor is walked
+ * where it stands), nor is nesting deeper than MAX_RECIPE_DEPTH, which plainCopy refuses.
+ */
+function repeatedYamlKey(doc: Document.Parsed): RepeatedKey | null {
+  let found: RepeatedKey | null = null;
+  const stack: { node: unknown; path: (string | number)[] }[] = [{ node: doc.contents, path: [] }];
+  while (stack.length > 0) {
+    const { node, path } = stack.pop()!;
+    if (path.length > MAX_RECIPE_DEPTH) continue;
+    if (isSeq(node)) {
+      node.items.forEach((item, k) => stack.push({ node: item, path: [...path, k] }));
+    } else if (isMap(node)) {
+      const seen = new Map<string, number>();
+      for (const pair of node.items) {
+        if (!isPair(pair) || !isScalar(pair.key)) continue;
+        const key = String(pair.key.value);
+        const at = pair.key.range?.[0] ?? 0;
+        const first = seen.get(key);
+        if (first === undefined) seen.set(key, at);
+        else if (found === null || at < found.again) found = { path, key, first, again: at };
+        stack.push({ node: pair.value, path: [...path, key] });
+      }
+    }
+  }
+  return found;
+}
+
+/** `steps[0].minutes`; a key that is not a plain name is quoted, `dopants["a b"]`; a long path is cut after a few steps, as `steps[0][0][0]…`. */
 function fieldPath(path: readonly (string | number)[]): string {
   let out = '';
-  for (const p of path.slice(0, 6)) out += typeof p === 'number' ? `[${p}]` : out ? `.${p}` : p;
+  for (const p of path.slice(0, 6)) {
+    if (typeof p === 'number') out += `[${p}]`;
+    else if (/^[A-Za-z_][\w-]*$/.test(p)) out += out ? `.${p}` : p;
+    else out += `[${JSON.stringify(p)}]`;
+  }
   return out ? `${out}${path.length > 6 ? '…' : ''}` : 'the top level';
 }
 
