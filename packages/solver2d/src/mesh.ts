@@ -40,8 +40,20 @@ export interface SpacingRule {
   nearReachUm?: number;
 }
 
-/** Samples per interval for the spacing integral; the placement error is far below a cell. */
-const SAMPLES = 2048;
+/**
+ * Samples per interval for the spacing integral: 16 per finest cell the interval could hold,
+ * between 64 and 2048. The integrand 1/s(x) is continuous and piecewise smooth, so the
+ * trapezoid rule places nodes to far below a cell either way.
+ */
+const MIN_SAMPLES = 64;
+const MAX_SAMPLES = 2048;
+const SAMPLES_PER_CELL = 16;
+
+function samplesFor(a: number, b: number, rule: SpacingRule): number {
+  const finest = Math.min(rule.fineUm, rule.maxUm, rule.nearUm ?? Infinity);
+  const wanted = Math.ceil((SAMPLES_PER_CELL * (b - a)) / finest);
+  return Math.min(MAX_SAMPLES, Math.max(MIN_SAMPLES, Number.isFinite(wanted) ? wanted : MAX_SAMPLES));
+}
 
 function spacingAt(distance: number, rule: SpacingRule): number {
   const beyond = Math.max(0, distance - rule.fineReachUm);
@@ -51,55 +63,60 @@ function spacingAt(distance: number, rule: SpacingRule): number {
 }
 
 /**
- * Places nodes on [a, b] so that the spacing follows 1/∫ds/s(x): n cells where n is the
- * integral rounded up, node k where the cumulative integral reaches k·(total/n).
- * `distance(x)` is the distance from x to the nearest feature.
+ * ∫dx/s(x) over [a, b] by the trapezoid rule on `samples` parts; when `cumulative` is given
+ * (samples + 1 long) it receives the running integral. `features` are sorted; the distance
+ * to the nearest one is kept with a cursor, since the samples only move right.
  */
-/** Cumulative ∫dx/s(x) over [a, b] at SAMPLES + 1 points (trapezoid rule). */
-function spacingIntegral(a: number, b: number, distance: (x: number) => number, rule: SpacingRule): Float64Array {
-  const h = (b - a) / SAMPLES;
-  const cumulative = new Float64Array(SAMPLES + 1);
-  let previous = 1 / spacingAt(distance(a), rule);
-  for (let k = 1; k <= SAMPLES; k++) {
-    const next = 1 / spacingAt(distance(a + k * h), rule);
-    cumulative[k] = cumulative[k - 1] + 0.5 * h * (previous + next);
+function spacingIntegral(a: number, b: number, features: readonly number[], rule: SpacingRule, samples: number, cumulative?: Float64Array): number {
+  const h = (b - a) / samples;
+  let p = 0;
+  const inverseSpacing = (x: number) => {
+    while (p < features.length && features[p] <= x) p++;
+    const left = p > 0 ? x - features[p - 1] : Infinity;
+    const right = p < features.length ? features[p] - x : Infinity;
+    return 1 / spacingAt(Math.min(left, right), rule);
+  };
+  let total = 0;
+  let previous = inverseSpacing(a);
+  for (let k = 1; k <= samples; k++) {
+    const next = inverseSpacing(a + k * h);
+    total += 0.5 * h * (previous + next);
+    if (cumulative) cumulative[k] = total;
     previous = next;
   }
-  return cumulative;
+  return total;
 }
 
 function cellsFor(total: number): number {
   return Math.max(1, Math.ceil(total - 1e-9));
 }
 
-function gradedInterval(a: number, b: number, distance: (x: number) => number, rule: SpacingRule): number[] {
-  const h = (b - a) / SAMPLES;
-  const cumulative = spacingIntegral(a, b, distance, rule);
-  const total = cumulative[SAMPLES];
+/**
+ * Places nodes on [a, b] so that the spacing follows 1/∫ds/s(x): n cells where n is the
+ * integral rounded up, node k where the cumulative integral reaches k·(total/n).
+ */
+function gradedInterval(a: number, b: number, features: readonly number[], rule: SpacingRule, out: number[]): void {
+  const samples = samplesFor(a, b, rule);
+  const h = (b - a) / samples;
+  const cumulative = new Float64Array(samples + 1);
+  const total = spacingIntegral(a, b, features, rule, samples, cumulative);
   const cells = cellsFor(total);
-  const points = [a];
   let k = 0;
   for (let m = 1; m < cells; m++) {
     const target = (m * total) / cells;
     while (cumulative[k + 1] < target) k++;
     const f = (target - cumulative[k]) / (cumulative[k + 1] - cumulative[k]);
-    points.push(a + (k + f) * h);
+    out.push(a + (k + f) * h);
   }
-  points.push(b);
-  return points;
+  out.push(b);
 }
 
 function axisStops(length: number, fixed: readonly number[]): number[] {
   return [...new Set([0, length, ...fixed])].sort((p, q) => p - q);
 }
 
-function distanceTo(features: readonly number[]): (x: number) => number {
-  if (features.length === 0) return () => Infinity;
-  return (x: number) => {
-    let d = Infinity;
-    for (const f of features) d = Math.min(d, Math.abs(x - f));
-    return d;
-  };
+function sorted(features: readonly number[]): number[] {
+  return [...features].sort((p, q) => p - q);
 }
 
 /**
@@ -109,21 +126,18 @@ function distanceTo(features: readonly number[]): (x: number) => number {
  */
 export function gradedAxisCells(length: number, fixed: readonly number[], features: readonly number[], rule: SpacingRule): number {
   const stops = axisStops(length, fixed);
-  const distance = distanceTo(features);
+  const near = sorted(features);
   let cells = 0;
-  for (let s = 0; s + 1 < stops.length; s++) cells += cellsFor(spacingIntegral(stops[s], stops[s + 1], distance, rule)[SAMPLES]);
+  for (let s = 0; s + 1 < stops.length; s++) cells += cellsFor(spacingIntegral(stops[s], stops[s + 1], near, rule, samplesFor(stops[s], stops[s + 1], rule)));
   return cells;
 }
 
 /** Faces on [0, width] with a face on every fixed point and fine spacing near `features`. */
 export function gradedAxis(length: number, fixed: readonly number[], features: readonly number[], rule: SpacingRule): Float64Array {
   const stops = axisStops(length, fixed);
-  const distance = distanceTo(features);
+  const near = sorted(features);
   const out: number[] = [0];
-  for (let s = 0; s + 1 < stops.length; s++) {
-    const interval = gradedInterval(stops[s], stops[s + 1], distance, rule);
-    for (let k = 1; k < interval.length; k++) out.push(interval[k]);
-  }
+  for (let s = 0; s + 1 < stops.length; s++) gradedInterval(stops[s], stops[s + 1], near, rule, out);
   return Float64Array.from(out);
 }
 
