@@ -2,17 +2,16 @@ import erf from '@stdlib/math-base-special-erf';
 import erfcinv from '@stdlib/math-base-special-erfcinv';
 import fc from 'fast-check';
 import { describe, it } from 'vitest';
-import { parseRecipe, planRecipe } from '../../packages/solver2d/src/index.ts';
-import { zeroContours, type NodeGrid } from '../../packages/solver2d/src/junction.ts';
 import { BOLTZMANN_EV_PER_K, CM2_PER_S_TO_UM2_PER_S, UM_TO_CM } from '../../packages/solver2d/src/units.ts';
 import { wellFormed, type Json, type Recipe } from './generators.ts';
-import { NO_LIMITS, onSmallMesh, solve } from './small.ts';
+import { onSmallMesh, solve } from './small.ts';
 import { check, count, logUniform, printCountsAfterAll, round3, uniform } from './support.ts';
 
 /**
  * Invariants of whole solves on generated cases (small meshes, so each solve is a few
  * milliseconds): dose conserved in a drive-in, no negative concentration (after every solve
- * here, see small.ts), mirror symmetry, deeper with more time or heat, and translation.
+ * here, see small.ts), mirror symmetry, and deeper with more time or heat. Translation has a
+ * file of its own (translation.test.ts), so that the two run side by side.
  */
 printCountsAfterAll('invariants.test.ts');
 
@@ -92,192 +91,78 @@ describe('solver invariants on generated cases', () => {
   it('more time or a higher temperature never gives a shallower junction', () => {
     // Two cases where the closed form says the junction only deepens with ∫D dt:
     //  - a constant source: xj = 2√(Dt)·erfc⁻¹(NB/Cs), and the whole region above NB grows
-    //    (C rises with time everywhere for a source held from zero initial data);
-    //  - a film in a window of half-width a, then a drive-in: at the centre
-    //    C = Q/√(πDt)·exp(−z²/4Dt)·erf(a/2√(Dt)), so d(xj²)/d√(Dt) > 0 while the centre's
-    //    surface value stays above e·NB (erf(u)'s log-derivative times u is at most 1);
-    //    cases keep it above 20·NB after the longer drive-in.
-    // Both solves share one uniform mesh and step ratio (1.1); ∫D dt grows by at least 5 %,
-    // so xj by at least 2.4 %, while the two solves' errors differ by far less (each is under
-    // 1 % at ratio 1.2, plan.ts). So xj and both lateral reaches must not shrink at all.
+    //    (C rises with time everywhere for a source held from zero initial data; zero-flux
+    //    walls keep that, so the walls may stand close);
+    //  - a film in a window of half-width a, then a drive-in: at a point x from the centre
+    //    C = Q/√(πDt)·exp(−z²/4Dt)·½[erf((a − x)/2√(Dt)) + erf((a + x)/2√(Dt))], so
+    //    d(xj²)/d√(Dt) > 0 while the surface value there stays above e·NB (each erf(u)'s
+    //    log-derivative times u is at most 1); cases keep it above 20·NB after the longer drive-in.
+    // The window stands against the left wall, a mirror plane: the solve is half of a window
+    // of half-width a, and the report's centre (x = a/2) is a point a/2 from the full
+    // window's centre. Both solves share one uniform mesh of spacing h ≈ √(∫D dt)/4 and step
+    // ratio 1.1. ∫D dt grows by at least 5 %, so xj by at least 2.4 %, while the two solves'
+    // errors differ by far less. (A spacing near √(∫D dt) is not enough: the discrete
+    // profile's tail then decays by a fixed factor a cell instead of as a Gaussian, and at
+    // Cs/NB ≈ 1e6 the junction lies in that tail, where the step sequence moves it by more
+    // than the 5 %.) So xj and the lateral reach must not shrink at all.
     const pairs = fc.record({
       film: fc.boolean(),
       d0: logUniform(0.1, 10), ea: uniform(3.2, 3.8),
       background: logUniform(1e14, 1e17), cs: logUniform(1e18, 1e21), dose: logUniform(1e13, 1e16),
       t1: uniform(950, 1150), m1: logUniform(5, 120),
-      dT: fc.oneof(fc.constant(0), uniform(1, 40)), k: uniform(1, 3),
-      halfWindowFactor: uniform(1, 4),
+      dT: fc.oneof(fc.constant(0), uniform(1, 15)), k: uniform(1, 1.5),
+      halfWindowFactor: uniform(0.5, 2),
     }).filter((p) => diffusivity(p.d0, p.ea, p.t1 + p.dT) * p.m1 * p.k >= 1.05 * diffusivity(p.d0, p.ea, p.t1) * p.m1);
+    // Pairs whose film falls too close to the background are drawn but not solved: 10,300
+    // draws give the 10,000 checked pairs the suite asks for (checked below).
     let kept = 0;
-    check('deeper with more time or heat', pairs, (p) => {
+    const runs = 10_300;
+    check('deeper with more time or heat, pairs drawn', pairs, (p) => {
       const beta = (t: number, m: number) => diffusivity(p.d0, p.ea, t) * m * 60 * CM2_PER_S_TO_UM2_PER_S;
       const b1 = beta(p.t1, p.m1);
       const b2 = beta(p.t1 + p.dT, p.m1 * p.k);
       // 1D junction depths, closed forms (sizing the shared mesh only): erfc for the constant source, the Gaussian for the film.
       const reach = (b: number) => 2 * Math.sqrt(b) * (p.film ? Math.sqrt(Math.log(Math.max(2, p.dose / UM_TO_CM / (p.background * Math.sqrt(Math.PI * b))))) : erfcinv(p.background / p.cs));
-      const halfWindow = p.halfWindowFactor * reach(b1);
+      const h = Math.sqrt(b1) / 3;
+      const a = Math.max(2, Math.round((p.halfWindowFactor * reach(b1)) / h)) * h;
       if (p.film) {
-        // The centre's surface value after the longer drive-in, closed form (cm^-3).
-        const surface = (p.dose / UM_TO_CM) / Math.sqrt(Math.PI * b2) * erf(halfWindow / (2 * Math.sqrt(b2)));
+        // The surface value at x = a/2 after the longer drive-in, closed form (cm^-3).
+        const lateral = 0.5 * (erf(a / (4 * Math.sqrt(b2))) + erf((3 * a) / (4 * Math.sqrt(b2))));
+        const surface = ((p.dose / UM_TO_CM) / Math.sqrt(Math.PI * b2)) * lateral;
         if (surface < 20 * p.background) return;
       }
       kept++;
-      count('deeper with more time or heat, pairs solved');
-      const h = 2 ** Math.round(Math.log2(reach(b1) / 8));
-      const margin = Math.ceil((2 * reach(b2)) / h) * h;
-      const w = Math.max(2, Math.round((2 * halfWindow) / h)) * h;
+      const margin = Math.ceil((1.3 * reach(b2)) / h) * h;
       const mesh = { surfaceSpacingUm: h, edgeSpacingUm: h, maxSpacingUm: h };
       const make = (t: number, m: number): Recipe => ({
         title: 'monotonicity (invented)',
         substrate: { dopant: 'P', concentrationCm3: p.background },
-        crossSection: { widthUm: 2 * margin + w, depthUm: Math.ceil((2 * reach(b2)) / h) * h },
-        mask: { windows: [[margin, margin + w]] },
+        crossSection: { widthUm: a + margin, depthUm: margin },
+        mask: { windows: [[0, a]] },
         dopants: { Q: { type: 'acceptor', D0Cm2PerS: p.d0, EaEv: p.ea } },
+        diffusion: { model: 'intrinsic' },
         mesh, numerics: { stepGrowth: 1.1 },
         steps: p.film
           ? [{ kind: 'film', dopant: 'Q', doseCm2: p.dose }, { kind: 'drive-in', temperatureC: t, minutes: m }]
           : [{ kind: 'predeposition', dopant: 'Q', surfaceConcentrationCm3: p.cs, temperatureC: t, minutes: m }],
       });
-      const a = solve(make(p.t1, p.m1));
-      const b = solve(make(p.t1 + p.dT, p.m1 * p.k));
-      if (a.plan.mesh.nx !== b.plan.mesh.nx || a.plan.mesh.nz !== b.plan.mesh.nz) throw new Error('test set-up: the two meshes differ');
-      const [wa] = a.report.windows;
-      const [wb] = b.report.windows;
+      const first = solve(make(p.t1, p.m1));
+      const second = solve(make(p.t1 + p.dT, p.m1 * p.k));
+      if (first.plan.mesh.nx !== second.plan.mesh.nx || first.plan.mesh.nz !== second.plan.mesh.nz) throw new Error('test set-up: the two meshes differ');
+      const [wa] = first.report.windows;
+      const [wb] = second.report.windows;
       // Lateral reach too for the constant source (the comparison principle covers the whole region).
-      for (const key of p.film ? ['junctionDepthUm'] as const : ['junctionDepthUm', 'lateralLeftUm', 'lateralRightUm'] as const) {
+      for (const key of p.film ? ['junctionDepthUm'] as const : ['junctionDepthUm', 'lateralRightUm'] as const) {
         const before = wa[key];
         const after = wb[key];
         if (before === null || after === null) throw new Error(`test set-up: no junction (${key}: ${before} → ${after})`);
         if (!(after >= before)) throw new Error(`${key} ${before} µm → ${after} µm with ∫D dt ×${(b2 / b1).toFixed(3)} (${p.film ? 'film' : 'constant source'})`);
       }
-    }, 300);
-    if (kept < 200) throw new Error(`only ${kept} of 300 pairs had a film far enough above the background: the generator needs adjusting`);
-  });
-
-  it('moving the windows and the cross-section by the same offset moves the field, and with it the contour, by that offset', () => {
-    // Exact up to rounding on a uniform mesh whose spacing h is a power of two µm, with every
-    // window edge, the width and the offset whole multiples of h: the shifted mesh is the same
-    // cells with m more on the left (positions exact in binary), the time steps are the same
-    // (they depend on the finest cell and ∫D dt only), and the one physical difference, the
-    // farther left wall, where each species must be below 1e-13 of its largest value (the
-    // margin is widened until it is, or the case is skipped): what the wall reflects is no
-    // more than what reaches it. So:
-    //  - field: each species agrees cell for cell to 1e-12 of its largest value (the line
-    //    solves are longer by m cells, which changes only their rounding: 4e-14 measured);
-    //  - contour: a vertex is the zero of the linear interpolant on a grid edge of length L
-    //    between values a and b of opposite sign, x = p + L·a/(a − b); values off by at most
-    //    Δ (the field difference, summed over species) move it by at most 2·L·Δ/|a − b|,
-    //    plus 1e-9 µm for rounding of the positions. Δ is measured, not assumed.
-    const shifted = fc.tuple(wellFormed({ noMesh: true }), fc.integer({ min: 1, max: 12 })).map(([g, m]) => ({ g, m }));
-    check('translation moves the field and the contour', shifted, ({ g, m }) => {
-      // Sized from the recipe with its depth left to the plan: the profile's reach and ∫D dt.
-      const free = { ...g.recipe, crossSection: { widthUm: (g.recipe.crossSection as Recipe).widthUm } };
-      const sizing = planRecipe(parseRecipe(free), NO_LIMITS);
-      const spread = Math.max(sizing.reachUm, Math.sqrt(Math.max(...Object.values(sizing.thermalBudgetUm2))));
-      const h = 2 ** Math.round(Math.log2(spread / 8));
-      const grid = (x: number) => Math.max(1, Math.round(x / h)) * h;
-      const windows = ((g.recipe.mask as Recipe).windows as number[][]).map(([x0, x1]) => [x0, x1]);
-      const layout = (margin: number) => {
-        // The same windows snapped to the grid, a reach apart, `margin` from the walls.
-        let x = margin;
-        const placed: number[][] = [];
-        for (const [x0, x1] of windows) {
-          const width = grid(x1 - x0);
-          placed.push([x, x + width]);
-          x += width + grid(Math.max(h, sizing.reachUm));
-        }
-        return { placed, widthUm: x + margin };
-      };
-      const depthUm = grid(Math.max(1.5 * sizing.reachUm, sizing.mesh.depthUm));
-      // Long implicit steps spread a tail about √(ν)/h cells a decade: 6 spreads clear the wall
-      // in most cases; twice that for the rest (concentration-dependent diffusion runs ahead of ∫D dt).
-      let margin = grid(6 * spread);
-      const base = (offset: number): Recipe => {
-        const { placed, widthUm } = layout(margin);
-        return {
-          ...g.recipe,
-          crossSection: { widthUm: widthUm + offset, depthUm },
-          mask: { windows: placed.map(([x0, x1]) => [x0 + offset, x1 + offset]) },
-          mesh: { surfaceSpacingUm: h, edgeSpacingUm: h, maxSpacingUm: h },
-          numerics: { stepGrowth: 1.5 },
-        };
-      };
-      let a = solve(base(0));
-      if (!wallClear(a.sim.concentration, a.plan.mesh.nx, a.plan.mesh.nz)) {
-        margin *= 2;
-        a = solve(base(0));
-        if (!wallClear(a.sim.concentration, a.plan.mesh.nx, a.plan.mesh.nz)) {
-          count('translation, cases skipped: dopant at the wall after two margins');
-          return;
-        }
-      }
-      const { nx, nz } = a.plan.mesh;
-      const d = m * h;
-      const b = solve(base(d));
-      if (b.plan.mesh.nx !== nx + m || b.plan.mesh.nz !== nz) throw new Error(`test set-up: ${nx} and ${b.plan.mesh.nx} columns for an offset of ${m} cells`);
-      let delta = 0;
-      for (const [name, ca] of Object.entries(a.sim.concentration)) {
-        const cb = b.sim.concentration[name];
-        let top = 0;
-        let worst = 0;
-        for (let j = 0; j < nz; j++) {
-          for (let i = 0; i < nx; i++) {
-            top = Math.max(top, Math.abs(ca[j * nx + i]));
-            worst = Math.max(worst, Math.abs(cb[j * (nx + m) + i + m] - ca[j * nx + i]));
-          }
-        }
-        if (!(worst <= 1e-12 * top)) throw new Error(`${name}: the shifted field differs by ${(worst / top).toExponential(2)} of its largest value`);
-        delta += worst;
-      }
-      // The contours, unrounded, from the junction grids analyze.ts built (the report rounds to 6 digits).
-      const la = zeroContours(a.grid);
-      const lb = zeroContours(b.grid);
-      if (la.length !== lb.length) throw new Error(`${la.length} junction polylines, shifted ${lb.length}`);
-      la.forEach((line, n) => {
-        if (line.length !== lb[n].length) throw new Error(`polyline ${n}: ${line.length} vertices, shifted ${lb[n].length}`);
-        line.forEach(([xa, za], v) => {
-          const [xb, zb] = lb[n][v];
-          const tol = 1e-9 + vertexSensitivity(a.grid, xa, za) * delta;
-          if (!(Math.abs(xb - d - xa) <= tol && Math.abs(zb - za) <= tol)) {
-            throw new Error(`polyline ${n} vertex ${v}: (${xa}, ${za}) µm, shifted by ${d}: (${xb}, ${zb}) µm, beyond ${tol.toExponential(2)} µm`);
-          }
-        });
-      });
-    }, 150);
+      count('deeper with more time or heat');
+    }, runs);
+    if (kept < 10_000) throw new Error(`only ${kept} of ${runs} pairs had a film far enough above the background: the generator needs adjusting`);
   });
 });
-
-/** True when every species in the first column is below 1e-13 of its largest value. */
-function wallClear(concentration: Record<string, Float64Array>, nx: number, nz: number): boolean {
-  for (const c of Object.values(concentration)) {
-    let top = 0;
-    let wall = 0;
-    for (let j = 0; j < nz; j++) {
-      wall = Math.max(wall, Math.abs(c[j * nx]));
-      for (let i = 0; i < nx; i++) top = Math.max(top, Math.abs(c[j * nx + i]));
-    }
-    if (wall > 1e-13 * top) return false;
-  }
-  return true;
-}
-
-/**
- * How far a contour vertex at (x, z) can move per unit change of the grid values: 2·L/|a − b|
- * for the grid edge it lies on (length L, end values a and b; see zeroContours in junction.ts).
- */
-function vertexSensitivity(grid: NodeGrid, x: number, z: number): number {
-  const { xs, zs, values, nx } = grid;
-  const j = zs.indexOf(z);
-  if (j >= 0) {
-    let i = 0;
-    while (i + 2 < nx && xs[i + 1] < x) i++;
-    return (2 * (xs[i + 1] - xs[i])) / Math.abs(values[j * nx + i] - values[j * nx + i + 1]);
-  }
-  const i = xs.indexOf(x);
-  let k = 0;
-  while (k + 2 < zs.length && zs[k + 1] < z) k++;
-  return (2 * (zs[k + 1] - zs[k])) / Math.abs(values[k * nx + i] - values[(k + 1) * nx + i]);
-}
 
 /** D = D0·exp(−Ea/kT), cm²/s: the Arrhenius law a species of the recipe's own follows (README). */
 function diffusivity(d0: number, ea: number, temperatureC: number): number {
