@@ -81,8 +81,7 @@ export class AdiStepper {
   private readonly up: Float64Array;
   private readonly star: Float64Array;
   private readonly savedRows: Float64Array;
-  /** ν per node, transposed, and a scratch line of Thomas factors, for variable D */
-  private readonly nuT: Float64Array;
+  /** Thomas factors of the four lines of a block, for variable D */
   private readonly cpBlock: Float64Array;
 
   constructor(mesh: Mesh, mask: Mask) {
@@ -125,7 +124,6 @@ export class AdiStepper {
     };
     this.star = new Float64Array(nx * nz);
     this.savedRows = new Float64Array(2 * nx);
-    this.nuT = new Float64Array(nx * nz);
     this.cpBlock = new Float64Array(4 * n);
   }
 
@@ -185,23 +183,21 @@ export class AdiStepper {
 
   /**
    * The same step with D varying in space (concentration-dependent diffusion): `nu` holds
-   * ν = D·τ at every node (row-major, like `c`; `transposed`, if given, is the same values
-   * column-major, saving the transpose); a face takes the mean of its two nodes.
+   * ν = D·τ at every node (row-major, like `c`); a face takes the mean of its two nodes.
    * Lines are factorised one at a time since no two share a matrix.
    */
-  stepVariable(c: Float64Array, nu: Float64Array, scheme: Scheme, held: boolean, surfaceValue: number,
-               transposed: Float64Array | null = null): number {
-    const { nx, nz, nuT, ax, cx, az, cz } = this;
+  stepVariable(c: Float64Array, nu: Float64Array, scheme: Scheme, held: boolean, surfaceValue: number): number {
+    const { nx, nz, ax, cx, az, cz } = this;
     const pr = scheme === 'peaceman-rachford';
     const implicit = pr ? 0.5 : 1;
     const explicit = pr ? 0.5 : 0;
     if (held) this.savedRows.set(c.subarray(0, 2 * nx));
-    const nuColumns = transposed ?? nuT;
-    if (!transposed) transpose(nu, nuT, nx, nz);
     const rowHeld = held ? this.surfaceRowKind : this.noneHeldX;
     const columnHeld = held ? this.openColumnKind : this.sealedZKind;
-    variableSweep(c, this.star, nu, nx, nz, ax, cx, az, cz, implicit, explicit, this.cpBlock, rowHeld, this.open, false, surfaceValue);
-    variableSweep(this.star, c, nuColumns, nz, nx, az, cz, ax, cx, implicit, explicit, this.cpBlock, columnHeld, this.zSweep.heldAlong, true, surfaceValue);
+    // ν stays row-major for both sweeps: along a row (x sweep) consecutive, along a column
+    // (z sweep) a row apart, where the four columns of a block read neighbouring values.
+    variableSweep(c, this.star, nu, nx, 1, nx, nz, ax, cx, az, cz, implicit, explicit, this.cpBlock, rowHeld, this.open, false, surfaceValue);
+    variableSweep(this.star, c, nu, 1, nx, nz, nx, az, cz, ax, cx, implicit, explicit, this.cpBlock, columnHeld, this.zSweep.heldAlong, true, surfaceValue);
     return held ? this.inflowVariable(c, nu, pr) : 0;
   }
 
@@ -379,7 +375,7 @@ function sweepLine(src: Float64Array, dst: Float64Array, s: SweepSetup, q: numbe
  * rest (held lines of a row sweep, mixed blocks, the remainder) one at a time. `firstOnly`
  * says a held line is held at position 0 only, which a block can take.
  */
-function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, n: number, m: number,
+function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number,
                        gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
                        beta: number, e: number, cp: Float64Array, kind: Uint8Array, heldAlong: Uint8Array,
                        firstOnly: boolean, heldValue: number): void {
@@ -388,14 +384,14 @@ function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, n
     const k0 = kind[q];
     const uniform = k0 === kind[q + 1] && k0 === kind[q + 2] && k0 === kind[q + 3];
     if (uniform && (k0 === 0 || firstOnly)) {
-      variableBlock(src, dst, nu, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, k0 === 1, heldValue);
+      variableBlock(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, k0 === 1, heldValue);
     } else {
       for (let r = q; r < q + 4; r++) {
-        variableLine(src, dst, nu, n, m, r, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[r] === 1 ? heldAlong : null, heldValue);
+        variableLine(src, dst, nu, nuLine, nuAlong, n, m, r, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[r] === 1 ? heldAlong : null, heldValue);
       }
     }
   }
-  for (; q < m; q++) variableLine(src, dst, nu, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[q] === 1 ? heldAlong : null, heldValue);
+  for (; q < m; q++) variableLine(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[q] === 1 ? heldAlong : null, heldValue);
 }
 
 /**
@@ -405,24 +401,28 @@ function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, n
  * faces taking the mean ν of their two nodes; the result goes transposed into `dst`.
  * `held` marks positions held at `heldValue` (identity rows), or is null.
  */
-function variableLine(src: Float64Array, dst: Float64Array, nu: Float64Array, n: number, m: number, q: number,
+function variableLine(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number, q: number,
                       gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
                       beta: number, e: number, cp: Float64Array, held: Uint8Array | null, heldValue: number): void {
   const base = q * n;
   const before = q > 0 ? base - n : base;
   const after = q < m - 1 ? base + n : base;
+  const nb = q * nuLine;
+  const nBefore = q > 0 ? nb - nuLine : nb;
+  const nAfter = q < m - 1 ? nb + nuLine : nb;
   const wa = e * hPrev[q];
   const wb = e * hNext[q];
   let y = 0;
   let cpPrev = 0;
-  let nuPrev = nu[base];
+  let nuPrev = nu[nb];
   for (let k = 0; k < n; k++) {
-    const nk = nu[base + k];
-    const nNext = k < n - 1 ? nu[base + k + 1] : nk;
+    const ka = k * nuAlong;
+    const nk = nu[nb + ka];
+    const nNext = k < n - 1 ? nu[nb + ka + nuAlong] : nk;
     const sk = src[base + k];
     let lo = -beta * gPrev[k] * 0.5 * (nuPrev + nk);
     let up = -beta * gNext[k] * 0.5 * (nk + nNext);
-    let r = sk + wa * 0.5 * (nu[before + k] + nk) * (src[before + k] - sk) + wb * 0.5 * (nu[after + k] + nk) * (src[after + k] - sk);
+    let r = sk + wa * 0.5 * (nu[nBefore + ka] + nk) * (src[before + k] - sk) + wb * 0.5 * (nu[nAfter + ka] + nk) * (src[after + k] - sk);
     if (held !== null && held[k] === 1) { lo = 0; up = 0; r = heldValue; }
     const inv = 1 / (1 - lo - up - lo * cpPrev);
     cpPrev = up * inv;
@@ -445,12 +445,15 @@ function variableLine(src: Float64Array, dst: Float64Array, nu: Float64Array, n:
  * across the five faces between and around the four lines are computed once and shared,
  * and ν along each line is carried from one position to the next.
  */
-function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n: number, m: number, q: number,
+function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number, q: number,
                        gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
                        beta: number, e: number, cp: Float64Array, heldFirst: boolean, heldValue: number): void {
   const b0 = q * n, b1 = b0 + n, b2 = b1 + n, b3 = b2 + n;
   const bb = q > 0 ? b0 - n : b0;
   const ba = q + 4 < m ? b3 + n : b3;
+  const u0 = q * nuLine, u1 = u0 + nuLine, u2 = u1 + nuLine, u3 = u2 + nuLine;
+  const ub = q > 0 ? u0 - nuLine : u0;
+  const ua = q + 4 < m ? u3 + nuLine : u3;
   const half = 0.5 * e;
   const wa0 = half * hPrev[q + 0], wb0 = half * hNext[q + 0];
   const wa1 = half * hPrev[q + 1], wb1 = half * hNext[q + 1];
@@ -458,41 +461,42 @@ function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n
   const wa3 = half * hPrev[q + 3], wb3 = half * hNext[q + 3];
   let y0 = 0, y1 = 0, y2 = 0, y3 = 0;
   let p0 = 0, p1 = 0, p2 = 0, p3 = 0;
-  let v0 = nu[b0], n0 = v0;
-  let v1 = nu[b1], n1 = v1;
-  let v2 = nu[b2], n2 = v2;
-  let v3 = nu[b3], n3 = v3;
+  let v0 = nu[u0], n0 = v0;
+  let v1 = nu[u1], n1 = v1;
+  let v2 = nu[u2], n2 = v2;
+  let v3 = nu[u3], n3 = v3;
   for (let k = 0; k < n; k++) {
-    const kn = k < n - 1 ? k + 1 : k;
+    const ka = k * nuAlong;
+    const kn = k < n - 1 ? ka + nuAlong : ka;
     const gp = 0.5 * beta * gPrev[k];
     const gn = 0.5 * beta * gNext[k];
     const sb = src[bb + k], sa = src[ba + k];
     const s0 = src[b0 + k], s1 = src[b1 + k], s2 = src[b2 + k], s3 = src[b3 + k];
     // ν̄·(difference) across the faces below line 0, between the lines, above line 3
-    const f0 = (nu[bb + k] + n0) * (s0 - sb);
+    const f0 = (nu[ub + ka] + n0) * (s0 - sb);
     const f1 = (n0 + n1) * (s1 - s0);
     const f2 = (n1 + n2) * (s2 - s1);
     const f3 = (n2 + n3) * (s3 - s2);
-    const f4 = (n3 + nu[ba + k]) * (sa - s3);
-    const x0 = nu[b0 + kn];
+    const f4 = (n3 + nu[ua + ka]) * (sa - s3);
+    const x0 = nu[u0 + kn];
     let lo0 = -gp * (v0 + n0);
     let up0 = -gn * (n0 + x0);
     let r0 = s0 + wb0 * f1 - wa0 * f0;
     v0 = n0;
     n0 = x0;
-    const x1 = nu[b1 + kn];
+    const x1 = nu[u1 + kn];
     let lo1 = -gp * (v1 + n1);
     let up1 = -gn * (n1 + x1);
     let r1 = s1 + wb1 * f2 - wa1 * f1;
     v1 = n1;
     n1 = x1;
-    const x2 = nu[b2 + kn];
+    const x2 = nu[u2 + kn];
     let lo2 = -gp * (v2 + n2);
     let up2 = -gn * (n2 + x2);
     let r2 = s2 + wb2 * f3 - wa2 * f2;
     v2 = n2;
     n2 = x2;
-    const x3 = nu[b3 + kn];
+    const x3 = nu[u3 + kn];
     let lo3 = -gp * (v3 + n3);
     let up3 = -gn * (n3 + x3);
     let r3 = s3 + wb3 * f4 - wa3 * f3;
@@ -527,13 +531,5 @@ function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n
     y1 = dst[o + 1] - cp[c + 1] * y1; dst[o + 1] = y1;
     y2 = dst[o + 2] - cp[c + 2] * y2; dst[o + 2] = y2;
     y3 = dst[o + 3] - cp[c + 3] * y3; dst[o + 3] = y3;
-  }
-}
-
-/** dst[i·nz + j] = src[j·nx + i]: a hot loop of its own, so the caller is never compiled mid-loop. */
-function transpose(src: Float64Array, dst: Float64Array, nx: number, nz: number): void {
-  for (let j = 0; j < nz; j++) {
-    const row = j * nx;
-    for (let i = 0; i < nx; i++) dst[i * nz + j] = src[row + i];
   }
 }

@@ -298,7 +298,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
         const nu = componentBudgets(st, s, t0, t1);
         if (coupled && s.model === 'charged-defect') {
           const node = coupled.nodeBudgets(s, nu);
-          entered[s.name] += stepper.stepVariable(c, node.nu, scheme, isHeld, surface, node.nuT);
+          entered[s.name] += stepper.stepVariable(c, node, scheme, isHeld, surface);
         } else {
           entered[s.name] += stepper.step(c, nu.neutral + nu.single + nu.double, scheme, isHeld, surface);
         }
@@ -348,16 +348,14 @@ class CoupledDiffusivity {
   private readonly previous: Record<string, Float64Array> = {};
   private readonly hasPrevious = new Set<string>();
   private readonly net: Float64Array;
-  /** ν at the nodes, row-major and transposed, for the two sweeps */
+  /** ν at the nodes, row-major (both sweeps read it so) */
   private readonly nu: Float64Array;
-  private readonly nuT: Float64Array;
   private ni = 1;
 
   constructor(private readonly plan: Plan, cells: number) {
     for (const s of plan.species) this.previous[s.name] = new Float64Array(cells);
     this.net = new Float64Array(cells);
     this.nu = new Float64Array(cells);
-    this.nuT = new Float64Array(cells);
   }
 
   restart(): void {
@@ -384,13 +382,12 @@ class CoupledDiffusivity {
     return ringing;
   }
 
-  /** ν = D·τ at every node for one species from its term budgets, in both layouts. */
-  nodeBudgets(s: SpeciesPlan, b: ComponentDiffusivities): { nu: Float64Array; nuT: Float64Array } {
-    const { nx, nz } = this.plan.mesh;
+  /** ν = D·τ at every node for one species from its term budgets. */
+  nodeBudgets(s: SpeciesPlan, b: ComponentDiffusivities): Float64Array {
     const sign = s.type === 'donor' ? 1 : -1;
     // An acceptor sees p/ni, which is n/ni with the sign of the net doping turned over.
-    nodeBudgets(this.nu, this.nuT, this.net, nx, nz, this.ni, sign, b.neutral, b.single, s.type === 'donor' ? b.double : 0, s.fieldEnhancement);
-    return { nu: this.nu, nuT: this.nuT };
+    nodeBudgets(this.nu, this.net, this.ni, sign, b.neutral, b.single, s.type === 'donor' ? b.double : 0, s.fieldEnhancement);
+    return this.nu;
   }
 }
 
@@ -418,34 +415,21 @@ function addExtrapolated(net: Float64Array, c: Float64Array, prev: Float64Array,
   EXTREMES[1] = highest;
 }
 
-/** Rows per band when nodeBudgets writes both layouts. */
-const TILE = 8;
-
 /**
  * ν = (ν⁰ + ν¹·r + ν²·r²)·h at every node, r = n/ni for a donor (sign +1) or p/ni for an
  * acceptor (sign −1), from neutrality: with u = ±N/2ni, r = u + √(u² + 1) (see intrinsic.ts;
  * for u < 0 the reciprocal form 1/(√(u² + 1) − u) keeps the digits). h = 1 + |u|/√(u² + 1)
- * on the species whose type carries the net doping (u > 0), else 1. Writes row-major `nu`
- * and transposed `nuT` at once.
+ * on the species whose type carries the net doping (u > 0), else 1.
  */
-function nodeBudgets(nu: Float64Array, nuT: Float64Array, net: Float64Array, nx: number, nz: number, ni: number,
+function nodeBudgets(nu: Float64Array, net: Float64Array, ni: number,
                      sign: number, neutral: number, single: number, double: number, field: boolean): void {
   const scale = sign / (2 * ni);
-  // Bands of TILE rows, column by column within a band: both layouts are then written a few
-  // cache lines at a time rather than one of them at a stride of a whole line per value.
-  for (let j0 = 0; j0 < nz; j0 += TILE) {
-    const j1 = Math.min(nz, j0 + TILE);
-    for (let i = 0; i < nx; i++) {
-      for (let j = j0; j < j1; j++) {
-        const u = net[j * nx + i] * scale;
-        const root = Math.sqrt(u * u + 1);
-        const r = u >= 0 ? u + root : 1 / (root - u);
-        const h = field && u > 0 ? 1 + u / root : 1;
-        const v = (neutral + single * r + double * r * r) * h;
-        nu[j * nx + i] = v;
-        nuT[i * nz + j] = v;
-      }
-    }
+  for (let k = 0; k < net.length; k++) {
+    const u = net[k] * scale;
+    const root = Math.sqrt(u * u + 1);
+    const r = u >= 0 ? u + root : 1 / (root - u);
+    const h = field && u > 0 ? 1 + u / root : 1;
+    nu[k] = (neutral + single * r + double * r * r) * h;
   }
 }
 
