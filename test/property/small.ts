@@ -1,7 +1,7 @@
-import { analyze, parseRecipe, planRecipe, simulate, type Analysis, type Plan } from '../../packages/solver2d/src/index.ts';
+import { analyze, parseRecipe, planRecipe, REPORT_SCHEMA_ID, simulate, type Analysis, type Plan } from '../../packages/solver2d/src/index.ts';
 import type { Simulation } from '../../packages/solver2d/src/simulate.ts';
 import { UM_TO_CM } from '../../packages/solver2d/src/units.ts';
-import { count, worst } from './support.ts';
+import { count, numbersIn, worst } from './support.ts';
 
 export const NO_LIMITS = { maxMeshPoints: Infinity, maxPointSteps: Infinity };
 import type { Json, Recipe } from './generators.ts';
@@ -66,10 +66,32 @@ export function checkNonNegative(sim: Simulation): void {
   count('no negative concentration (every solve in this file)');
 }
 
-/** parse → plan → simulate → analyze, with the non-negativity check on the way. */
+/**
+ * A valid recipe's solve gives a whole report: its schema, one entry per window, every
+ * number finite (NaN or Inf would be written as null by JSON.stringify), and a dose ledger
+ * that balances over the whole recipe (what entered through a held surface, a film or an
+ * implant is in the silicon: the scheme is conservative to rounding, stepper.test.ts; 1e-9
+ * is the issue's bound).
+ */
+export function checkReport(sim: Simulation, analysis: Analysis): void {
+  const { report } = analysis;
+  if (report.schema !== REPORT_SCHEMA_ID) throw new Error(`schema ${report.schema}`);
+  const windows = sim.plan.mask.windows.length;
+  if (report.windows.length !== windows) throw new Error(`${report.windows.length} window reports for ${windows} windows`);
+  const bad = numbersIn(report).filter(([, v]) => !Number.isFinite(v));
+  if (bad.length > 0) throw new Error(`non-finite numbers in the report: ${bad.slice(0, 5).map(([p, v]) => `${p} = ${v}`).join(', ')}`);
+  for (const [name, entry] of Object.entries(sim.ledger)) {
+    if (!(entry.relativeImbalance <= 1e-9)) throw new Error(`${name}: dose ledger off by ${entry.relativeImbalance}`);
+  }
+  count('a valid recipe gives a whole, finite report (every solve in this file)');
+}
+
+/** parse → plan → simulate → analyze, with the non-negativity and report checks on the way. */
 export function solve(recipe: unknown): { plan: Plan; sim: Simulation } & Analysis {
   const plan = planRecipe(parseRecipe(recipe));
   const sim = simulate(plan);
   checkNonNegative(sim);
-  return { plan, sim, ...analyze(sim) };
+  const analysis = analyze(sim);
+  checkReport(sim, analysis);
+  return { plan, sim, ...analysis };
 }
