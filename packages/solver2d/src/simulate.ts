@@ -289,13 +289,14 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
       }
       // A concentration-dependent D can feed Peaceman–Rachford's undamped stiff modes (see
       // DAMPED_STEPS): where the field has begun to ring, the next steps are split implicit.
-      if (coupled && coupled.prepare(concentration, present, midC, previousDt > 0 ? dt / (2 * previousDt) : 0)) damped = DAMPED_STEPS;
+      const budgets = present.map((s) => componentBudgets(st, s, t0, t1));
+      if (coupled && coupled.prepare(concentration, present, budgets, midC, previousDt > 0 ? dt / (2 * previousDt) : 0)) damped = DAMPED_STEPS;
       const scheme = schedule[k].implicit || damped > 0 ? 'split-implicit' : 'peaceman-rachford';
       if (damped > 0) damped--;
-      for (const s of present) {
+      for (const [n, s] of present.entries()) {
         const isHeld = s === held;
         const c = concentration[s.name];
-        const nu = componentBudgets(st, s, t0, t1);
+        const nu = budgets[n];
         if (coupled && s.model === 'charged-defect') {
           const node = coupled.nodeBudgets(s, nu);
           entered[s.name] += stepper.stepVariable(c, node, scheme, isHeld, surface);
@@ -351,6 +352,8 @@ class CoupledDiffusivity {
   /** ν at the nodes, row-major (both sweeps read it so) */
   private readonly nu: Float64Array;
   private ni = 1;
+  /** the species whose ν prepare() already made, if any */
+  private fused: SpeciesPlan | null = null;
 
   constructor(private readonly plan: Plan, cells: number) {
     for (const s of plan.species) this.previous[s.name] = new Float64Array(cells);
@@ -365,25 +368,39 @@ class CoupledDiffusivity {
   /**
    * Net doping at the middle of the coming step; remembers Cⁿ. Returns true when some
    * species has begun to ring: a value below −RINGING of its largest (rounding stays near
-   * 1e-13 of it; a stiff mode flipping sign each step grows far past that).
+   * 1e-13 of it; a stiff mode flipping sign each step grows far past that). With one species
+   * present, and that one concentration-dependent, its ν is made in the same pass (`budgets`
+   * are each present species' term budgets for the step).
    */
-  prepare(concentration: Record<string, Float64Array>, present: readonly SpeciesPlan[], temperatureC: number, theta: number): boolean {
+  prepare(concentration: Record<string, Float64Array>, present: readonly SpeciesPlan[], budgets: readonly ComponentDiffusivities[],
+          temperatureC: number, theta: number): boolean {
     const { net, plan } = this;
     this.ni = intrinsicCarriersCm3(temperatureC);
+    this.fused = null;
     const substrate = plan.substrate.type === 'donor' ? plan.substrate.concentrationCm3 : -plan.substrate.concentrationCm3;
     let ringing = false;
-    present.forEach((s, k) => {
+    for (let k = 0; k < present.length; k++) {
+      const s = present[k];
       const w = this.hasPrevious.has(s.name) ? theta : 0;
-      addExtrapolated(net, concentration[s.name], this.previous[s.name], w, s.type === 'donor' ? 1 : -1, k === 0, substrate);
+      const sign = s.type === 'donor' ? 1 : -1;
+      if (present.length === 1 && s.model === 'charged-defect') {
+        const b = budgets[k];
+        extrapolatedBudgets(this.nu, concentration[s.name], this.previous[s.name], w, sign, substrate, this.ni,
+          b.neutral, b.single, s.type === 'donor' ? b.double : 0, s.fieldEnhancement);
+        this.fused = s;
+      } else {
+        addExtrapolated(net, concentration[s.name], this.previous[s.name], w, sign, k === 0, substrate);
+      }
       if (EXTREMES[0] < -RINGING * EXTREMES[1]) ringing = true;
       this.hasPrevious.add(s.name);
-    });
+    }
     if (present.length === 0) net.fill(substrate);
     return ringing;
   }
 
   /** ν = D·τ at every node for one species from its term budgets. */
   nodeBudgets(s: SpeciesPlan, b: ComponentDiffusivities): Float64Array {
+    if (this.fused === s) return this.nu;
     const sign = s.type === 'donor' ? 1 : -1;
     // An acceptor sees p/ni, which is n/ni with the sign of the net doping turned over.
     nodeBudgets(this.nu, this.net, this.ni, sign, b.neutral, b.single, s.type === 'donor' ? b.double : 0, s.fieldEnhancement);
@@ -431,6 +448,32 @@ function nodeBudgets(nu: Float64Array, net: Float64Array, ni: number,
     const h = field && u > 0 ? 1 + u / root : 1;
     nu[k] = (neutral + single * r + double * r * r) * h;
   }
+}
+
+/**
+ * addExtrapolated and nodeBudgets in one pass, for a single species: net = base +
+ * sign·max(C + w·(C − C_prev), 0) at each node, ν from it as nodeBudgets does, C_prev = C,
+ * and C's extremes in EXTREMES.
+ */
+function extrapolatedBudgets(nu: Float64Array, c: Float64Array, prev: Float64Array, w: number, sign: number, base: number, ni: number,
+                             neutral: number, single: number, double: number, field: boolean): void {
+  const scale = sign / (2 * ni);
+  let lowest = Infinity;
+  let highest = -Infinity;
+  for (let k = 0; k < c.length; k++) {
+    const ck = c[k];
+    const mid = ck + w * (ck - prev[k]);
+    prev[k] = ck;
+    lowest = ck < lowest ? ck : lowest;
+    highest = ck > highest ? ck : highest;
+    const u = (base + sign * (mid > 0 ? mid : 0)) * scale;
+    const root = Math.sqrt(u * u + 1);
+    const r = u >= 0 ? u + root : 1 / (root - u);
+    const h = field && u > 0 ? 1 + u / root : 1;
+    nu[k] = (neutral + single * r + double * r * r) * h;
+  }
+  EXTREMES[0] = lowest;
+  EXTREMES[1] = highest;
 }
 
 /** Total open window width, µm: doses are reported per unit of open area. */
