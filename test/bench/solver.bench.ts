@@ -3,7 +3,9 @@
  * 1. ns per mesh point per full ADI step (both sweeps), at three mesh sizes.
  * 2. The reference case at three mesh refinements: wall time, xj and lateral encroachment
  *    against the mesh- and step-converged values.
- * 3. The whole CLI process on the reference case.
+ * 3. Nonlinear (charged-defect) against linear (intrinsic) time on the same mesh, for the
+ *    reference case and the bundled examples.
+ * 4. The whole CLI process on the reference case.
  */
 import { execFileSync } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
@@ -13,6 +15,7 @@ import { AdiStepper } from '../../packages/solver2d/src/adi.ts';
 import { buildMask } from '../../packages/solver2d/src/mask.ts';
 import { buildMesh, uniformAxis } from '../../packages/solver2d/src/mesh.ts';
 import { analyze, parseRecipe, planRecipe, simulate } from '../../packages/solver2d/src/index.ts';
+import { readRecipeFile } from '../../packages/cli/src/read-recipe.ts';
 import { referenceRecipe } from './reference-case.ts';
 
 function best<T>(repeats: number, f: () => T): { ms: number; value: T } {
@@ -63,20 +66,39 @@ for (const refine of [0.5, 1, 2]) {
     (refine === 1 ? '   ← default mesh' : ''));
 }
 
-console.log('\nNonlinear (charged-defect model, boron at p/ni ≈ 8) against linear, on the same mesh');
+console.log('\nNonlinear (charged-defect model) against linear (intrinsic), each recipe on the mesh planned for its');
+console.log('nonlinear profile (the deeper one); CPU time, best of 8 runs taken in turn');
 {
-  // The nonlinear profile is deeper: both run on the mesh planned for it.
-  const nonlinearPlan = planRecipe(parseRecipe(referenceRecipe({}, {}, 'charged-defect')));
-  const linearPlan = { ...planRecipe(parseRecipe(referenceRecipe())), mesh: nonlinearPlan.mesh, mask: nonlinearPlan.mask };
-  const lin = best(5, () => simulate(linearPlan));
-  const non = best(5, () => simulate(nonlinearPlan));
-  const steps = (r: { value: ReturnType<typeof simulate> }) => r.value.stepRecords.reduce((n, s) => n + s.timeSteps, 0);
-  const points = linearPlan.mesh.nx * linearPlan.mesh.nz;
-  const per = (r: { ms: number }, n: number) => ((r.ms * 1e6) / (n * points)).toFixed(1);
-  console.log(`  mesh ${linearPlan.mesh.nx} × ${linearPlan.mesh.nz}: linear ${lin.ms.toFixed(1)} ms (${steps(lin)} steps, ${per(lin, steps(lin))} ns/point/step), ` +
-    `nonlinear ${non.ms.toFixed(1)} ms (${steps(non)} steps, ${per(non, steps(non))} ns/point/step): ${(non.ms / lin.ms).toFixed(2)}× the linear time`);
-  const xj = (sim: ReturnType<typeof simulate>) => analyze(sim).report.windows[0].junctionDepthUm!;
-  console.log(`  xj linear ${xj(lin.value).toFixed(4)} µm, nonlinear ${xj(non.value).toFixed(4)} µm`);
+  const cases: [string, unknown][] = [
+    ['reference, boron at p/ni ≈ 8', referenceRecipe({}, {}, 'charged-defect')],
+    ...['base-resistor.json', 'boron-base.json', 'arsenic-source-drain.json', 'phosphorus-well.yaml']
+      .map((f): [string, unknown] => [`examples/${f}`, readRecipeFile(join(process.cwd(), 'examples', f))]),
+  ];
+  const cpuMs = (f: () => unknown) => {
+    const t0 = process.cpuUsage();
+    f();
+    const t = process.cpuUsage(t0);
+    return (t.user + t.system) / 1000;
+  };
+  for (const [name, recipe] of cases) {
+    // One model for every species: the recipe's own per-species choices are set aside.
+    const withModel = (model: string) => parseRecipe({ ...(recipe as object), diffusion: { ...((recipe as { diffusion?: object }).diffusion ?? {}), model, species: undefined } });
+    const nonlinearPlan = planRecipe(withModel('charged-defect'));
+    const linearPlan = { ...planRecipe(withModel('intrinsic')), mesh: nonlinearPlan.mesh, mask: nonlinearPlan.mask };
+    let lin = Infinity;
+    let non = Infinity;
+    for (let r = 0; r < 8; r++) {
+      lin = Math.min(lin, cpuMs(() => simulate(linearPlan)));
+      non = Math.min(non, cpuMs(() => simulate(nonlinearPlan)));
+    }
+    const steps = (plan: typeof linearPlan) => simulate(plan).stepRecords.reduce((n, s) => n + s.timeSteps, 0);
+    const points = nonlinearPlan.mesh.nx * nonlinearPlan.mesh.nz;
+    const ls = steps(linearPlan);
+    const ns = steps(nonlinearPlan);
+    console.log(`  ${name.padEnd(36)} ${nonlinearPlan.mesh.nx} × ${nonlinearPlan.mesh.nz}: linear ${lin.toFixed(1)} ms (${ls} steps), ` +
+      `nonlinear ${non.toFixed(1)} ms (${ns} steps): ${(non / lin).toFixed(2)}× the time, ${((non / ns) / (lin / ls)).toFixed(2)}× a step` +
+      `  [${((non * 1e6) / (ns * points)).toFixed(1)} vs ${((lin * 1e6) / (ls * points)).toFixed(1)} ns/point/step]`);
+  }
 }
 
 const dir = mkdtempSync(join(tmpdir(), 'edgewise-bench-'));
