@@ -5,7 +5,7 @@ import { EnvironmentError, fileSystemError, InputError } from '../../packages/cl
 import { inside } from '../../packages/cli/src/files.ts';
 import { strayFileSystemError } from '../../packages/cli/src/main.ts';
 import { repeatedJsonKey } from '../../packages/cli/src/read-recipe.ts';
-import { edgewise, REPO, tempDir } from '../support/cli.ts';
+import { csvFields, edgewise, REPO, tempDir } from '../support/cli.ts';
 
 /**
  * Hostile paths: links under an output folder that lead out of it, output folders that cannot
@@ -24,22 +24,6 @@ function recipeIn(dir: string): string {
 
 function lines(text: string): string[] {
   return text.split('\n').filter((l) => l !== '');
-}
-
-/** Fields of one CSV line, quotes honoured (RFC 4180). */
-function csvFields(line: string): string[] {
-  const fields: string[] = [];
-  let field = '';
-  let quoted = false;
-  for (let k = 0; k < line.length; k++) {
-    const ch = line[k];
-    if (quoted && ch === '"' && line[k + 1] === '"') { field += '"'; k++; }
-    else if (ch === '"') quoted = !quoted;
-    else if (ch === ',' && !quoted) { fields.push(field); field = ''; }
-    else field += ch;
-  }
-  fields.push(field);
-  return fields;
 }
 
 describe('inside(): a symbolic link under the folder cannot lead a write out of it', () => {

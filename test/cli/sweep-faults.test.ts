@@ -2,7 +2,7 @@ import { spawn } from 'node:child_process';
 import { existsSync, mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { BIN, edgewise, tempDir } from '../support/cli.ts';
+import { BIN, csvFields, edgewise, tempDir } from '../support/cli.ts';
 
 /**
  * Faults in a sweep: kill -9 in the middle then --resume, Ctrl-C, a run that fails. The recipe
@@ -32,22 +32,6 @@ function walk(dir: string, out: string[] = []): string[] {
     else out.push(p);
   }
   return out;
-}
-
-/** Fields of one CSV line, quotes honoured (RFC 4180). */
-function csvFields(line: string): string[] {
-  const fields: string[] = [];
-  let field = '';
-  let quoted = false;
-  for (let k = 0; k < line.length; k++) {
-    const ch = line[k];
-    if (quoted && ch === '"' && line[k + 1] === '"') { field += '"'; k++; }
-    else if (ch === '"') quoted = !quoted;
-    else if (ch === ',' && !quoted) { fields.push(field); field = ''; }
-    else field += ch;
-  }
-  fields.push(field);
-  return fields;
 }
 
 /**

@@ -15,3 +15,19 @@ export function edgewise(args: string[], options: { cwd?: string; input?: string
   const r = spawnSync(process.execPath, [BIN, ...args], { cwd: options.cwd ?? REPO, input: options.input, encoding: 'utf8', timeout: 120_000 });
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }
+
+/** Fields of one CSV line, quotes honoured (RFC 4180). */
+export function csvFields(line: string): string[] {
+  const fields: string[] = [];
+  let field = '';
+  let quoted = false;
+  for (let k = 0; k < line.length; k++) {
+    const ch = line[k];
+    if (quoted && ch === '"' && line[k + 1] === '"') { field += '"'; k++; }
+    else if (ch === '"') quoted = !quoted;
+    else if (ch === ',' && !quoted) { fields.push(field); field = ''; }
+    else field += ch;
+  }
+  fields.push(field);
+  return fields;
+}
