@@ -9,7 +9,8 @@
  * reading the recipe to the last file), without Node's start-up. Two references say how much
  * of a second core the machine gave at that moment: the same sweep as two independent
  * processes (`--shard 1/2` and `--shard 2/2`, one job each, started together), which is the
- * pool's ideal on this machine; and a bare arithmetic loop in 1 and in 2 threads.
+ * pool's ideal on this machine; a bare arithmetic loop in 1 and in 2 threads; and a loop that
+ * streams over arrays the size of a solve's working set, in 1 and in 2 threads.
  */
 import { spawn, spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -50,6 +51,20 @@ async function loop(threads: number): Promise<number> {
   return (performance.now() - t0) / 1000;
 }
 
+/**
+ * The same with a loop that streams over arrays the size of a solve's working set (four
+ * 0.4 MB fields, as a 390 × 126 nonlinear run keeps: about the 2 MB of L2 a core has), in
+ * 1 and 2 threads: how far memory traffic, rather than arithmetic, scales on this machine.
+ */
+async function streamingLoop(threads: number): Promise<number> {
+  const code = 'const n = 49000; const a = [0, 1, 2, 3].map(() => new Float64Array(n).fill(1)); let x = 0;' +
+    'for (let r = 0; r < 1500; r++) { const [p, q, u, v] = a; for (let k = 1; k < n - 1; k++) { p[k] = 0.25 * (q[k - 1] + q[k + 1]) + 0.5 * u[k]; v[k] = p[k] - v[k] * 0.5; } x += p[n >> 1]; }' +
+    "require('node:worker_threads').parentPort.postMessage(x);";
+  const t0 = performance.now();
+  await Promise.all(Array.from({ length: threads }, () => new Promise((done) => new Worker(code, { eval: true }).once('message', done))));
+  return (performance.now() - t0) / 1000;
+}
+
 /** Wall time of the sweep as two processes, one shard each, started together, s. */
 async function twoShards(out: string): Promise<number> {
   rmSync(out, { recursive: true, force: true });
@@ -66,11 +81,14 @@ sweep(1, join(dir, 'warm'));
 
 const best = { 1: { wall: Infinity, inSweep: Infinity }, 2: { wall: Infinity, inSweep: Infinity } };
 const bare = { 1: Infinity, 2: Infinity };
+const streaming = { 1: Infinity, 2: Infinity };
 let shards = Infinity;
 for (let k = 0; k < repeats; k++) {
   shards = Math.min(shards, await twoShards(join(dir, 'shards')));
   bare[1] = Math.min(bare[1], await loop(1));
   bare[2] = Math.min(bare[2], await loop(2));
+  streaming[1] = Math.min(streaming[1], await streamingLoop(1));
+  streaming[2] = Math.min(streaming[2], await streamingLoop(2));
   for (const jobs of [1, 2] as const) {
     const t = sweep(jobs, join(dir, `jobs-${jobs}`));
     best[jobs].wall = Math.min(best[jobs].wall, t.wall);
@@ -90,3 +108,5 @@ console.log(`  two processes, one shard and one job each: ${shards.toFixed(2)} s
 // Each loop thread does the same work, so there the efficiency is t1/t2 (not t1/(2·t2)).
 console.log(`  the machine meanwhile, a bare loop in 1 and in 2 threads (each the same work): ${bare[1].toFixed(2)} s / ${bare[2].toFixed(2)} s, ` +
   `efficiency ${((100 * bare[1]) / bare[2]).toFixed(0)} %`);
+console.log(`  and a loop streaming over a solve-sized working set (four 0.4 MB arrays) in 1 and 2 threads: ${streaming[1].toFixed(2)} s / ${streaming[2].toFixed(2)} s, ` +
+  `efficiency ${((100 * streaming[1]) / streaming[2]).toFixed(0)} %`);
