@@ -421,7 +421,8 @@ function variableLine(src: Float64Array, dst: Float64Array, nu: Float64Array, nu
     const nNext = k < n - 1 ? nu[nb + ka + nuAlong] : nk;
     const sk = src[base + k];
     // A held position is an identity row: free = 0 there, 1 elsewhere. Arithmetic, not a
-    // branch: a branch here made the loop box its doubles (a scavenge every few steps).
+    // branch: a branch here made the loop box its doubles (a scavenge every few steps). A NaN
+    // beside a held position now reaches it too (NaN·0); the finite guard stops the run either way.
     const free = held === null ? 1 : 1 - held[k];
     const lo = -beta * gPrev[k] * 0.5 * (nuPrev + nk) * free;
     const up = -beta * gNext[k] * 0.5 * (nk + nNext) * free;
