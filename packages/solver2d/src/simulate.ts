@@ -296,7 +296,8 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
       if (coupled && coupled.prepare(concentration, present, budgets, midC, previousDt > 0 ? dt / (2 * previousDt) : 0)) damped = DAMPED_STEPS;
       const scheme = schedule[k].implicit || damped > 0 ? 'split-implicit' : 'peaceman-rachford';
       if (damped > 0) damped--;
-      for (const [n, s] of present.entries()) {
+      for (let n = 0; n < present.length; n++) {
+        const s = present[n];
         const isHeld = s === held;
         const c = concentration[s.name];
         const nu = budgets[n];
@@ -397,7 +398,6 @@ class CoupledDiffusivity {
       if (EXTREMES[0] < -RINGING * EXTREMES[1]) ringing = true;
       this.hasPrevious.add(s.name);
     }
-    if (present.length === 0) net.fill(substrate);
     return ringing;
   }
 
@@ -456,7 +456,9 @@ function nodeBudgets(nu: Float64Array, net: Float64Array, ni: number,
 /**
  * addExtrapolated and nodeBudgets in one pass, for a single species: net = base +
  * sign·max(C + w·(C − C_prev), 0) at each node, ν from it as nodeBudgets does, C_prev = C,
- * and C's extremes in EXTREMES.
+ * and C's extremes in EXTREMES. The ν lines are nodeBudgets' own, written out again on
+ * purpose: as a function of its own called from both loops, ν came back boxed whenever the
+ * call was not inlined (1–7 scavenges a solve against 0).
  */
 function extrapolatedBudgets(nu: Float64Array, c: Float64Array, prev: Float64Array, w: number, sign: number, base: number, ni: number,
                              neutral: number, single: number, double: number, field: boolean): void {
