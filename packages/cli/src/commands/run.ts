@@ -15,9 +15,12 @@ export const RUN_USAGE = `edgewise run RECIPE [--out DIR] [--error-solves 0|1|2]
 /** Coarser solves for the error bars: 1 (mesh 2h, formal order) or 2 (2h and 4h, measured order). */
 const DEFAULT_ERROR_SOLVES = 2;
 
-export function parseErrorSolves(text: string | undefined): 0 | 1 | 2 {
+/** `--error-solves`, for every command that takes it; `each` says per what ("per run" for a sweep). */
+export function parseErrorSolves(text: string | undefined, each = ''): 0 | 1 | 2 {
   if (text === undefined) return DEFAULT_ERROR_SOLVES;
-  if (text !== '0' && text !== '1' && text !== '2') throw new UsageError(`--error-solves: must be 0, 1 or 2 coarser solves for the error bars (got ${JSON.stringify(text)})`);
+  if (text !== '0' && text !== '1' && text !== '2') {
+    throw new UsageError(`--error-solves ${JSON.stringify(text)}: expected 0, 1 or 2 coarser solves${each ? ` ${each}` : ''} for the error bars (default ${DEFAULT_ERROR_SOLVES})`);
+  }
   return Number(text) as 0 | 1 | 2;
 }
 

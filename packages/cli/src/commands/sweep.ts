@@ -9,6 +9,7 @@ import { fmtLength, fmtRatio, fmtSci, table } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits } from '../limits.ts';
 import { progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
+import { parseErrorSolves } from './run.ts';
 import type { RunRow } from '../sweep/csv.ts';
 import { buildMatrix, runRecipe, type SweepMatrix, type SweepRun } from '../sweep/matrix.ts';
 import { workerBundle, WorkerPool } from '../sweep/pool.ts';
@@ -27,8 +28,6 @@ export const EXIT_INTERRUPTED = 130;
 export const EXIT_TERMINATED = 143;
 
 export const MAX_JOBS = 256;
-/** Coarser solves behind each run's error bars, as for a single run: 2 (meshes 2h and 4h). */
-export const DEFAULT_ERROR_SOLVES: ErrorSolves = 2;
 /** sweep.csv and sweep.json are rewritten at most this often while runs finish. */
 const RECORD_EVERY_MS = 1000;
 
@@ -41,14 +40,6 @@ function parseJobs(text: string | undefined): number {
   const n = /^\s*\d+\s*$/.test(text) ? Number(text) : NaN;
   if (!(n >= 1 && n <= MAX_JOBS)) throw new UsageError(`--jobs ${JSON.stringify(text)}: expected a whole number from 1 to ${MAX_JOBS} (worker threads; default: the number of cores, ${availableParallelism()})`);
   return n;
-}
-
-function parseErrorSolves(text: string | undefined): ErrorSolves {
-  if (text === undefined) return DEFAULT_ERROR_SOLVES;
-  if (text !== '0' && text !== '1' && text !== '2') {
-    throw new UsageError(`--error-solves ${JSON.stringify(text)}: expected 0, 1 or 2 coarser solves per run for the error bars (default ${DEFAULT_ERROR_SOLVES})`);
-  }
-  return Number(text) as ErrorSolves;
 }
 
 function errorText(e: unknown): string {
@@ -75,7 +66,7 @@ export async function sweepCommand(args: string[]): Promise<number> {
   if (positionals.length !== 1) throw new UsageError(`sweep takes one recipe file (usage: ${SWEEP_USAGE})`);
   const recipePath = positionals[0];
   const jobs = parseJobs(values.jobs);
-  const errorSolves = parseErrorSolves(values['error-solves']);
+  const errorSolves = parseErrorSolves(values['error-solves'], 'per run');
   const limits = parseLimits(values);
   const shard = values.shard === undefined ? null : parseShard(values.shard);
   const out = values.out ?? defaultSweepFolder(recipePath);

@@ -3,7 +3,7 @@ import { UsageError } from '../errors.ts';
 import { withLimitHint } from '../limits.ts';
 import { checkNumericPath, formatPath, parsePath, setAt, type Segment } from './fields.ts';
 import { recipeSha256, sha256 } from './hash.ts';
-import { parseValues } from './values.ts';
+import { parseValues, tidy } from './values.ts';
 
 /** The swept window width's name in sweep.csv and sweep.json. */
 export const WIDTH_PARAMETER = 'windowWidthUm';
@@ -84,11 +84,6 @@ export function sweepParameters(recipe: Recipe, request: SweepRequest): Paramete
 
 function describeValues(values: Record<string, number>): string {
   return Object.entries(values).map(([k, v]) => `${k}=${v}`).join(', ');
-}
-
-/** Twelve significant digits keep window coordinates free of binary noise (4, not 3.9999999999). */
-function tidy(v: number): number {
-  return Number(v.toPrecision(12));
 }
 
 /**

@@ -44,8 +44,11 @@ function number(text: string, what: string): number {
   return Number(t);
 }
 
-/** Twelve significant digits: 0.1 + 2·0.1 prints as 0.3, not 0.30000000000000004. */
-function tidy(v: number): number {
+/**
+ * Twelve significant digits: 0.1 + 2·0.1 prints as 0.3, not 0.30000000000000004, and window
+ * coordinates stay free of binary noise (4, not 3.9999999999).
+ */
+export function tidy(v: number): number {
   return Number(v.toPrecision(12));
 }
 
