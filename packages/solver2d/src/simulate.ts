@@ -220,7 +220,7 @@ function sourcePeaks(plan: Plan): Record<string, number> {
 
 /** Runs the recipe's steps in order; every species present diffuses during every timed step. */
 export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation {
-  const { mesh, mask, species, steps, numerics } = plan;
+  const { mesh, mask, species, steps } = plan;
   const cells = mesh.nx * mesh.nz;
   let hFine = Infinity;
   for (let i = 0; i < mesh.nx; i++) hFine = Math.min(hFine, mesh.dx[i]);

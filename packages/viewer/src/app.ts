@@ -80,7 +80,7 @@ export class App {
   private readonly empty: HTMLElement;
   private drag: { x: number; y: number; moved: boolean } | null = null;
 
-  constructor(private readonly view: HTMLElement, private readonly side: HTMLElement) {
+  constructor(private readonly view: HTMLElement, side: HTMLElement) {
     this.stage = new Stage(view);
     this.captions = this.make(view, 'div', 'captions');
     this.readout = this.make(view, 'div', 'readout');
