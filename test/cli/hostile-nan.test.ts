@@ -3,6 +3,7 @@ import { join } from 'node:path';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import * as solver from '../../packages/solver2d/src/index.ts';
 import { edgewise, tempDir } from '../support/cli.ts';
+import { TEST_DOPANT } from '../support/recipes.ts';
 
 /**
  * Numerical guard: a field that stops being finite ends the run with SolverError naming the
@@ -34,7 +35,7 @@ const RECIPE = {
   substrate: { dopant: 'P', concentrationCm3: 1e15 },
   crossSection: { widthUm: 12 },
   mask: { windows: [[4, 8]] },
-  dopants: { Q: { type: 'acceptor', D0Cm2PerS: 1, EaEv: 3.5 } },
+  dopants: { Q: TEST_DOPANT },
   mesh: { surfaceSpacingUm: 0.1, edgeSpacingUm: 0.2, maxSpacingUm: 0.5 },
   numerics: { stepGrowth: 1.3 },
   steps: [

@@ -2,18 +2,12 @@ import { existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { edgewise, tempDir } from '../support/cli.ts';
+import { filmRecipe } from '../support/recipes.ts';
 
 /** A small two-parameter sweep (4 widths × 2 drive-in times = 8 runs) cut into three shards. */
 const recipe = {
+  ...filmRecipe({ widthUm: 8, windows: [[3, 5]], background: 1e15, dose: 1e13, temperatureC: 1100, minutes: 10 }),
   title: 'shards and merge (test)',
-  substrate: { dopant: 'P', concentrationCm3: 1e15 },
-  crossSection: { widthUm: 8 },
-  mask: { windows: [[3, 5]] },
-  dopants: { Q: { type: 'acceptor', D0Cm2PerS: 1, EaEv: 3.5 } },
-  steps: [
-    { kind: 'film', dopant: 'Q', doseCm2: 1e13 },
-    { kind: 'drive-in', temperatureC: 1100, minutes: 10 },
-  ],
   sweep: { widthsUm: '0.5:0.5:2', set: { 'steps[1].minutes': [10, 20] } },
 };
 const RUNS = 8;

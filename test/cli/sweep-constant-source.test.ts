@@ -1,7 +1,7 @@
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { edgewise, tempDir } from '../support/cli.ts';
+import { edgewise, readCsv, tempDir } from '../support/cli.ts';
 import { erfcJunctionDepth } from '../support/closed-forms.ts';
 
 /**
@@ -11,7 +11,6 @@ import { erfcJunctionDepth } from '../support/closed-forms.ts';
 const NB = 1e15;
 const CS = 1e20;
 const SECTION_UM = 16;
-const CENTRE_UM = 8;
 const WIDTHS_UM = [0.1, 0.2, 0.5, 1, 2, 4, 6];
 
 const recipe = {
@@ -23,13 +22,6 @@ const recipe = {
   steps: [{ kind: 'predeposition', dopant: 'Q', surfaceConcentrationCm3: CS, temperatureC: 1100, minutes: 30 }],
   sweep: { widthsUm: WIDTHS_UM.join(',') },
 };
-
-function readCsv(path: string): Record<string, string>[] {
-  const [head, ...lines] = readFileSync(path, 'utf8').trimEnd().split('\n');
-  const header = head.split(',');
-  // No field of these rows holds a comma (no errors), so a plain split is exact.
-  return lines.map((l) => Object.fromEntries(l.split(',').map((v, k) => [header[k], v])));
-}
 
 describe('edgewise sweep from the recipe\'s own sweep key: constant source', () => {
   const dir = tempDir('edgewise-sweep-cs-');

@@ -3,6 +3,7 @@ import { existsSync, mkdirSync, readdirSync, readFileSync, statSync, writeFileSy
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { BIN, csvFields, edgewise, tempDir } from '../support/cli.ts';
+import { filmRecipe } from '../support/recipes.ts';
 
 /**
  * Faults in a sweep: kill -9 in the middle then --resume, Ctrl-C, a run that fails. The recipe
@@ -11,16 +12,8 @@ import { BIN, csvFields, edgewise, tempDir } from '../support/cli.ts';
  * solves) play no part here and are left out.
  */
 const recipe = {
+  ...filmRecipe({ widthUm: 8, windows: [[3, 5]], background: 1e15, mesh: { refine: 1.5 }, dose: 1e13, temperatureC: 1100, minutes: 30 }),
   title: 'film and drive-in on a fine mesh (test)',
-  substrate: { dopant: 'P', concentrationCm3: 1e15 },
-  crossSection: { widthUm: 8 },
-  mask: { windows: [[3, 5]] },
-  dopants: { Q: { type: 'acceptor', D0Cm2PerS: 1, EaEv: 3.5 } },
-  mesh: { refine: 1.5 },
-  steps: [
-    { kind: 'film', dopant: 'Q', doseCm2: 1e13 },
-    { kind: 'drive-in', temperatureC: 1100, minutes: 30 },
-  ],
 };
 const WIDTHS = '0.5:0.5:4';
 const RUNS = 8;

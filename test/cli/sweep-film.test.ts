@@ -1,7 +1,7 @@
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { edgewise, tempDir } from '../support/cli.ts';
+import { edgewise, readCsv, tempDir } from '../support/cli.ts';
 import { bisect, filmField } from '../support/closed-forms.ts';
 
 /**
@@ -31,13 +31,6 @@ const recipe = {
     { kind: 'drive-in', temperatureC: 1100, minutes: 30 },
   ],
 };
-
-/** sweep.csv as objects keyed by the header; no field of these rows holds a comma (no errors). */
-function readCsv(path: string): Record<string, string>[] {
-  const [head, ...lines] = readFileSync(path, 'utf8').trimEnd().split('\n');
-  const header = head.split(',');
-  return lines.map((l) => Object.fromEntries(l.split(',').map((v, k) => [header[k], v])));
-}
 
 interface Row {
   width: number;

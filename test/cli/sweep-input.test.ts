@@ -2,18 +2,12 @@ import { existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { edgewise, tempDir } from '../support/cli.ts';
+import { filmRecipe } from '../support/recipes.ts';
 
 /** A small recipe: a 24 µm cross-section, one window [8, 16] µm centred at 12 µm, two steps. */
 const base = {
+  ...filmRecipe({ widthUm: 24, windows: [[8, 16]], background: 1e15, dose: 1e13, temperatureC: 1100, minutes: 10 }),
   title: 'input checks (test)',
-  substrate: { dopant: 'P', concentrationCm3: 1e15 },
-  crossSection: { widthUm: 24 },
-  mask: { windows: [[8, 16]] },
-  dopants: { Q: { type: 'acceptor', D0Cm2PerS: 1, EaEv: 3.5 } },
-  steps: [
-    { kind: 'film', dopant: 'Q', doseCm2: 1e13 },
-    { kind: 'drive-in', temperatureC: 1100, minutes: 10 },
-  ],
 };
 
 describe('edgewise sweep: bad input is one line naming it and what is allowed, exit 2, nothing written', () => {

@@ -3,6 +3,7 @@ import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { BIN, edgewise, tempDir } from '../support/cli.ts';
+import { filmRecipe } from '../support/recipes.ts';
 
 /**
  * Progress on stderr: a redrawn bar with runs done, failures and time left on a terminal;
@@ -10,17 +11,9 @@ import { BIN, edgewise, tempDir } from '../support/cli.ts';
  * util-linux `script`.
  */
 const recipe = {
-  title: 'progress (test)',
-  substrate: { dopant: 'P', concentrationCm3: 1e15 },
-  crossSection: { widthUm: 8 },
-  mask: { windows: [[3, 5]] },
-  dopants: { Q: { type: 'acceptor', D0Cm2PerS: 1, EaEv: 3.5 } },
   // A finer mesh than the default, so the sweep outlasts the half second before a bar appears.
-  mesh: { refine: 2 },
-  steps: [
-    { kind: 'film', dopant: 'Q', doseCm2: 1e13 },
-    { kind: 'drive-in', temperatureC: 1100, minutes: 30 },
-  ],
+  ...filmRecipe({ widthUm: 8, windows: [[3, 5]], background: 1e15, mesh: { refine: 2 }, dose: 1e13, temperatureC: 1100, minutes: 30 }),
+  title: 'progress (test)',
 };
 const hasScript = spawnSync('script', ['--version'], { encoding: 'utf8' }).status === 0;
 

@@ -219,7 +219,7 @@ function numericFields(r: Recipe): { path: Path; lo: number; hi: number; loOpen:
   add(['substrate', 'concentrationCm3'], 1e10, 1e21);
   add(['crossSection', 'widthUm'], 0, 1e4, true);
   add(['crossSection', 'depthUm'], 0, 1e3, true);
-  (r.steps as Recipe[]).forEach((s, k) => {
+  (r.steps as Recipe[]).forEach((_, k) => {
     add(['steps', k, 'minutes'], 0, 1e5, true);
     add(['steps', k, 'temperatureC'], 600, 1400);
     add(['steps', k, 'surfaceConcentrationCm3'], 1e10, 1e22);

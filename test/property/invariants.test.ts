@@ -2,7 +2,8 @@ import erf from '@stdlib/math-base-special-erf';
 import erfcinv from '@stdlib/math-base-special-erfcinv';
 import fc from 'fast-check';
 import { describe, it } from 'vitest';
-import { BOLTZMANN_EV_PER_K, CM2_PER_S_TO_UM2_PER_S, UM_TO_CM } from '../../packages/solver2d/src/units.ts';
+import { UM_TO_CM } from '../../packages/solver2d/src/units.ts';
+import { arrheniusUm2PerS } from '../support/closed-forms.ts';
 import { wellFormed, type Json, type Recipe } from './generators.ts';
 import { onSmallMesh, solve } from './small.ts';
 import { check, count, logUniform, printCountsAfterAll, round3, uniform } from './support.ts';
@@ -112,13 +113,13 @@ describe('solver invariants on generated cases', () => {
       t1: uniform(950, 1150), m1: logUniform(5, 120),
       dT: fc.oneof(fc.constant(0), uniform(1, 15)), k: uniform(1, 1.5),
       halfWindowFactor: uniform(0.5, 2),
-    }).filter((p) => diffusivity(p.d0, p.ea, p.t1 + p.dT) * p.m1 * p.k >= 1.05 * diffusivity(p.d0, p.ea, p.t1) * p.m1);
+    }).filter((p) => arrheniusUm2PerS(p.d0, p.ea, p.t1 + p.dT) * p.m1 * p.k >= 1.05 * arrheniusUm2PerS(p.d0, p.ea, p.t1) * p.m1);
     // Pairs whose film falls too close to the background are drawn but not solved: 10,300
     // draws give the 10,000 checked pairs the suite asks for (checked below).
     let kept = 0;
     const runs = 10_300;
     check('deeper with more time or heat, pairs drawn', pairs, (p) => {
-      const beta = (t: number, m: number) => diffusivity(p.d0, p.ea, t) * m * 60 * CM2_PER_S_TO_UM2_PER_S;
+      const beta = (t: number, m: number) => arrheniusUm2PerS(p.d0, p.ea, t) * m * 60;
       const b1 = beta(p.t1, p.m1);
       const b2 = beta(p.t1 + p.dT, p.m1 * p.k);
       // 1D junction depths, closed forms (sizing the shared mesh only): erfc for the constant source, the Gaussian for the film.
@@ -163,8 +164,3 @@ describe('solver invariants on generated cases', () => {
     if (kept < 10_000) throw new Error(`only ${kept} of ${runs} pairs had a film far enough above the background: the generator needs adjusting`);
   });
 });
-
-/** D = D0·exp(−Ea/kT), cm²/s: the Arrhenius law a species of the recipe's own follows (README). */
-function diffusivity(d0: number, ea: number, temperatureC: number): number {
-  return d0 * Math.exp(-ea / (BOLTZMANN_EV_PER_K * (temperatureC + 273.15)));
-}

@@ -79,7 +79,7 @@ function field(mesh: Mesh, seed: number): Float64Array {
   return c;
 }
 
-function nodeNu(mesh: Mesh, nu: number, c: Float64Array): Float64Array {
+function nodeNu(nu: number, c: Float64Array): Float64Array {
   // Concentration-dependent ν, as the charged-defect model makes it: up to 4× where C is
   // high, from C clipped at 0 (simulate.ts clips the same way). Larger contrasts with large
   // steps are where Peaceman–Rachford stops being stable, which simulate.ts avoids by step size.
@@ -106,7 +106,7 @@ describe('one ADI step on generated meshes and fields', () => {
         const start = stepper.content(c) - entered;
         for (const { scheme, meshNumber, variable } of plan) {
           const nu = meshNumber * h * h;
-          entered += variable ? stepper.stepVariable(c, nodeNu(mesh, nu, c), scheme, held, surface) : stepper.step(c, nu, scheme, held, surface);
+          entered += variable ? stepper.stepVariable(c, nodeNu(nu, c), scheme, held, surface) : stepper.step(c, nu, scheme, held, surface);
         }
         const end = stepper.content(c);
         const scale = Math.max(start, absoluteContent(stepper, c));
@@ -147,7 +147,7 @@ describe('one ADI step on generated meshes and fields', () => {
       let bound = 0;
       for (const { scheme, meshNumber, variable } of plan) {
         const nu = meshNumber * h * h;
-        if (variable) stepper.stepVariable(c, nodeNu(mesh, nu, c), scheme, held, 1e20);
+        if (variable) stepper.stepVariable(c, nodeNu(nu, c), scheme, held, 1e20);
         else stepper.step(c, nu, scheme, held, 1e20);
         bound += 64 * Number.EPSILON * (1 + 4 * meshNumber * (variable ? 4 : 1));
       }
@@ -177,7 +177,7 @@ describe('one ADI step on generated meshes and fields', () => {
         const heldNode = held && k < mesh.nx && mask.open[k] === 1;
         if (held) stepper.holdSurface(c, 1e20);
         const nu = meshNumber * finest(mesh) ** 2;
-        if (variable) stepper.stepVariable(c, nodeNu(mesh, nu, c), scheme, held, 1e20);
+        if (variable) stepper.stepVariable(c, nodeNu(nu, c), scheme, held, 1e20);
         else stepper.step(c, nu, scheme, held, 1e20);
         const anywhere = c.some((v) => !Number.isFinite(v));
         if (!heldNode && !anywhere) throw new Error(`the ${value} at node ${k} vanished in one step`);

@@ -1,5 +1,5 @@
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync } from 'node:fs';
+import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 
@@ -30,4 +30,11 @@ export function csvFields(line: string): string[] {
   }
   fields.push(field);
   return fields;
+}
+
+/** sweep.csv as objects keyed by the header; no field of the rows read this way holds a comma (no errors). */
+export function readCsv(path: string): Record<string, string>[] {
+  const [head, ...lines] = readFileSync(path, 'utf8').trimEnd().split('\n');
+  const header = head.split(',');
+  return lines.map((l) => Object.fromEntries(l.split(',').map((v, k) => [header[k], v])));
 }

@@ -1,15 +1,14 @@
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
-import { mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
+import { mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
 import npyjs from 'npyjs';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
 import { ensureViewerBuilt } from '../../packages/cli/src/view-build.ts';
+import { BIN as CLI, REPO, tempDir as cliTempDir } from '../support/cli.ts';
 
 /** Helpers for the viewer's browser tests: real CLI runs, the real server, Debian's Chromium. */
 
-export const REPO = resolve(import.meta.dirname, '..', '..');
-export const CLI = join(REPO, 'packages', 'cli', 'bin', 'edgewise.mjs');
+export { REPO, BIN as CLI } from '../support/cli.ts';
 export const ARTIFACTS = join(REPO, 'test-artifacts', 'viewer');
 
 export function buildViewer(): Promise<string> {
@@ -17,7 +16,7 @@ export function buildViewer(): Promise<string> {
 }
 
 export function tempDir(prefix: string): string {
-  return mkdtempSync(join(tmpdir(), `edgewise-${prefix}-`));
+  return cliTempDir(`edgewise-${prefix}-`);
 }
 
 export const BASE_RECIPE = JSON.parse(readFileSync(join(REPO, 'examples', 'base-resistor.json'), 'utf8'));
