@@ -359,7 +359,9 @@ function sweepLine(src: Float64Array, dst: Float64Array, s: SweepSetup, q: numbe
   const a = wa[q], c = wb[q], mid = 1 - a - c;
   let y = 0;
   for (let k = 0; k < n; k++) {
-    const r = held && heldAlong[k] === 1 ? heldValue : mid * src[base + k] + a * src[before + k] + c * src[after + k];
+    // Held positions masked by arithmetic, as in variableLine (a branch here boxes doubles).
+    const free = held ? 1 - heldAlong[k] : 1;
+    const r = (mid * src[base + k] + a * src[before + k] + c * src[after + k]) * free + heldValue * (1 - free);
     y = (r - l[k] * y) * inv[k];
     dst[k * m + q] = y;
   }
