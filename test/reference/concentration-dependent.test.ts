@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { electronsRef, niRef } from '../support/physics.ts';
-import { solve } from '../support/solve.ts';
-import { columnAtX } from '../support/solve.ts';
+import { analyze, parseRecipe, planRecipe, simulate } from '../../packages/solver2d/src/index.ts';
+import { columnAtX, solve } from '../support/solve.ts';
 import { arrheniusUm2PerS } from '../support/closed-forms.ts';
 
 // A donor whose diffusion is almost all through singly charged defects (D⁻ of arsenic as
@@ -67,5 +67,69 @@ describe('concentration-dependent diffusion (charged-defect model, one species)'
   it('a step growth beyond the stable range is held to it rather than diverging', () => {
     const fast = solve(recipe(1.3)).report.windows[0].junctionDepthUm!;
     expect(Math.abs(fast / xj - 1)).toBeLessThan(0.001);
+  });
+});
+
+// A fixed dose of the same donor, placed as a thin film and driven in with the surface
+// sealed. Far above ni, D = 2·D⁻·C/ni (n/ni → C/ni, field factor h → 2), so with τ = a·t/2,
+// a = 2·D⁻/ni, the profile obeys C_τ = (C²)_zz: the porous-medium equation with m = 2, whose
+// instantaneous-source solution is Barenblatt's (Barenblatt 1952; Pattle, Q. J. Mech. Appl.
+// Math. 12 (1959) 407; from memory), on the full line with mass M = 2Q (the sealed surface is
+// its plane of symmetry):
+//   C = τ^(−1/3)·(K − z²·τ^(−2/3)/12)₊,  M = (4/3)·√12·K^(3/2),  front z_f = √(12K)·τ^(1/3).
+// The peak falls as t^(−1/3) through the anneal, and the time steps follow it (simulate.ts).
+describe('concentration-dependent diffusion from a fixed dose (Barenblatt–Pattle solution)', () => {
+  const DOSE = 2e16;
+  const DRIVE_MINUTES = 30;
+  function filmRecipe(stepGrowth?: number) {
+    return {
+      title: 'test: D ∝ C fixed dose, thin film then sealed drive-in (invented)',
+      substrate: { dopant: 'B', concentrationCm3: NB },
+      crossSection: { widthUm: 12 },
+      mask: { windows: [[1, 11]] },
+      dopants: { Xd: DOPANT },
+      ...(stepGrowth ? { numerics: { stepGrowth } } : {}),
+      steps: [{ kind: 'film', dopant: 'Xd', doseCm2: DOSE }, { kind: 'drive-in', temperatureC: T, minutes: DRIVE_MINUTES }],
+    };
+  }
+  const ni = niRef(T);
+  const a = (2 * arrheniusUm2PerS(DOPANT.singlyCharged.D0Cm2PerS, DOPANT.singlyCharged.EaEv, T)) / ni;
+  const tau = (a * DRIVE_MINUTES * 60) / 2;
+  // cm^-2 → cm^-3·µm: 1 cm = 1e4 µm
+  const K = ((3 * 2 * DOSE * 1e4) / (4 * Math.sqrt(12))) ** (2 / 3);
+  const front = Math.sqrt(12 * K) * Math.cbrt(tau);
+  const progress: { done: number; total: number }[] = [];
+  const plan = planRecipe(parseRecipe(filmRecipe()));
+  const sim = simulate(plan, { onProgress: (p) => progress.push({ done: p.done, total: p.total }) });
+  const column = columnAtX(plan.mesh, sim.concentration.Xd, 6);
+
+  /** Depth where the centre column falls to `f` of its surface value, µm. */
+  function depthAt(f: number): number {
+    const z = plan.mesh.z;
+    let j = 0;
+    while (j + 1 < z.length && column[j + 1] > f * column[0]) j++;
+    return z[j] + ((column[j] - f * column[0]) / (column[j] - column[j + 1])) * (z[j + 1] - z[j]);
+  }
+
+  it('the surface value is K·τ^(−1/3) and the depths at 0.9, 0.5 and 0.1 of it are z_f·√(1 − f), within 1 %', () => {
+    const peak = K / Math.cbrt(tau);
+    console.log(`fixed dose, D ∝ C: surface ${column[0].toExponential(4)} cm^-3 (Barenblatt ${peak.toExponential(4)}), front ${front.toFixed(4)} µm, ` +
+      `${sim.stepRecords[1].timeSteps} time steps`);
+    expect(Math.abs(column[0] / peak - 1)).toBeLessThan(0.01);
+    for (const f of [0.9, 0.5, 0.1]) expect(Math.abs(depthAt(f) / (front * Math.sqrt(1 - f)) - 1)).toBeLessThan(0.01);
+  });
+
+  it('steps that follow the falling peak converge: the default is within 0.15 % of a step growth of 1.0025 in xj (the project\'s budget, as above)', () => {
+    const xj = analyze(sim).report.windows[0].junctionDepthUm!;
+    const fine = solve(filmRecipe(1.0025)).report.windows[0].junctionDepthUm!;
+    expect(Math.abs(xj / fine - 1)).toBeLessThan(0.0015);
+  });
+
+  it('progress: the total never rises, never falls below what is done, and ends equal to it and to the steps taken', () => {
+    for (let k = 1; k < progress.length; k++) expect(progress[k].total).toBeLessThanOrEqual(progress[k - 1].total);
+    for (const p of progress) expect(p.done).toBeLessThanOrEqual(p.total);
+    const last = progress[progress.length - 1];
+    expect(last.done).toBe(last.total);
+    expect(last.done).toBe(sim.stepRecords.reduce((n, s) => n + s.timeSteps, 0));
   });
 });

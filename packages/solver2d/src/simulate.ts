@@ -115,68 +115,145 @@ interface TimeStep {
   implicit: boolean;
 }
 
+/** Growth of successive time steps for a peak speed-up over intrinsic (see NONLINEAR_SPEEDUP). */
+function growthFor(plan: Plan, speedup: number): number {
+  return speedup > NONLINEAR_SPEEDUP ? Math.min(plan.numerics.stepGrowth, nonlinearGrowth(speedup)) : plan.numerics.stepGrowth;
+}
+
 /**
  * Time steps for one process step, geometric in the thermal budget of its fastest species
  * (for a ramp, D changes by orders of magnitude; in budget the profile grows as it would
  * at a fixed temperature). A step that starts a source begins at the mesh's own scale; a
  * drive-in continues a profile whose age in budget is what came before, and its sequence
  * starts at (growth − 1)·age, keeping Δβ/β as if the profile had grown here from the start.
+ *
+ * Where D depends on concentration, the growth follows the peak as it falls: `next` takes
+ * the speed-up at the current peak, and each step grows by what that speed-up allows (an
+ * implant or film spreads during its anneal, and its peak with it). The first step and the
+ * lead-in are set by the speed-up the clock starts with, which is the largest the step can
+ * see; later speed-ups are no larger, so a step never takes more time steps than
+ * `StepClock.count` says, and the work limit is checked on that count. Elsewhere the sequence is fixed
+ * (`geometricSteps`, which lands on the duration with a ratio at most the growth).
  */
-function stepSchedule(plan: Plan, st: StepPlan, hFine: number, present: readonly SpeciesPlan[],
-                      budgetBefore: Record<string, number>, speedup: number): TimeStep[] {
-  if (!(st.seconds > 0) || present.length === 0) return [];
-  const reference = present.reduce((a, b) => ((st.budgetUm2[b.name] ?? 0) > (st.budgetUm2[a.name] ?? 0) ? b : a));
-  const total = st.budgetUm2[reference.name] ?? 0;
-  if (!(total > 0)) return [{ t0: 0, t1: st.seconds, implicit: plan.numerics.startupSteps > 0 }];
-  const growth = speedup > NONLINEAR_SPEEDUP ? Math.min(plan.numerics.stepGrowth, nonlinearGrowth(speedup)) : plan.numerics.stepGrowth;
-  let first = (FIRST_STEP_MESH_NUMBER * hFine * hFine) / speedup;
-  if (st.kind === 'drive-in' || st.kind === 'anneal') {
-    const ages = present.map((s) => ((budgetBefore[s.name] ?? 0) * total) / Math.max(st.budgetUm2[s.name] ?? 0, 1e-300));
-    first = Math.max(first, (growth - 1) * Math.min(...ages));
-  }
-  // Where D depends on C, the first steps are held small at the peak D; they then grow
-  // fast, split-implicit (L-stable), until ν at the peak reaches a few h², and the geometric
-  // sequence (with its start-up steps) carries on from there.
-  const lead: number[] = [];
-  let used = 0;
-  if (speedup > NONLINEAR_SPEEDUP) {
-    const target = (Math.min(LEAD_MESH_NUMBER, LEAD_RATIO_MESH * (growth - 1)) * hFine * hFine) / speedup;
-    const leadGrowth = Math.min(LEAD_GROWTH, 1 + LEAD_RATIO * (growth - 1));
-    while (first < target && used + first < LEAD_SHARE * total) {
-      lead.push(first);
-      used += first;
-      first *= leadGrowth;
+class StepClock {
+  private readonly total: number;
+  private readonly fixed: Float64Array | null;
+  private readonly lead: number[] = [];
+  private readonly implicitCount: number;
+  private readonly timeAt: (beta: number) => number;
+  private readonly seconds: number;
+  /** increments issued, budget used, the last increment, the time reached */
+  private k = 0;
+  private used = 0;
+  private last = 0;
+  private t = 0;
+  private first: number;
+
+  constructor(private readonly plan: Plan, st: StepPlan, hFine: number, present: readonly SpeciesPlan[],
+              budgetBefore: Record<string, number>, private readonly speedup: number) {
+    this.seconds = st.seconds;
+    this.total = 0;
+    this.fixed = new Float64Array(0);
+    this.implicitCount = 0;
+    this.first = 0;
+    this.timeAt = () => st.seconds;
+    if (!(st.seconds > 0) || present.length === 0) return;
+    const reference = present.reduce((a, b) => ((st.budgetUm2[b.name] ?? 0) > (st.budgetUm2[a.name] ?? 0) ? b : a));
+    const total = st.budgetUm2[reference.name] ?? 0;
+    if (!(total > 0)) {
+      // No budget to grow in: one step over the whole duration.
+      this.fixed = Float64Array.of(0);
+      this.implicitCount = plan.numerics.startupSteps > 0 ? 1 : 0;
+      return;
     }
+    this.total = total;
+    const growth = growthFor(plan, speedup);
+    let first = (FIRST_STEP_MESH_NUMBER * hFine * hFine) / speedup;
+    if (st.kind === 'drive-in' || st.kind === 'anneal') {
+      const ages = present.map((s) => ((budgetBefore[s.name] ?? 0) * total) / Math.max(st.budgetUm2[s.name] ?? 0, 1e-300));
+      first = Math.max(first, (growth - 1) * Math.min(...ages));
+    }
+    // Where D depends on C, the first steps are held small at the peak D; they then grow
+    // fast, split-implicit (L-stable), until ν at the peak reaches a few h², and the geometric
+    // sequence (with its start-up steps) carries on from there.
+    let used = 0;
+    if (speedup > NONLINEAR_SPEEDUP) {
+      const target = (Math.min(LEAD_MESH_NUMBER, LEAD_RATIO_MESH * (growth - 1)) * hFine * hFine) / speedup;
+      const leadGrowth = Math.min(LEAD_GROWTH, 1 + LEAD_RATIO * (growth - 1));
+      while (first < target && used + first < LEAD_SHARE * total) {
+        this.lead.push(first);
+        used += first;
+        first *= leadGrowth;
+      }
+    }
+    this.first = first;
+    this.fixed = speedup > NONLINEAR_SPEEDUP ? null : geometricSteps(total - used, first, growth);
+    this.implicitCount = this.lead.length + plan.numerics.startupSteps;
+    // Budget → time: cumulative budget of the reference species at the ends of many pieces,
+    // each by one five-point Gauss rule: across 1/256 of the widest ramp (800 K) D changes by
+    // under 10 %, and the rule integrates an exponential that flat to rounding.
+    const pieces = st.startC === st.endC ? 1 : 256;
+    const times = new Float64Array(pieces + 1);
+    const cumulative = new Float64Array(pieces + 1);
+    const diffusivity = (t: number) => intrinsicDiffusivity(reference.dopant, temperatureAt(st, t));
+    for (let p = 1; p <= pieces; p++) {
+      times[p] = (st.seconds * p) / pieces;
+      cumulative[p] = cumulative[p - 1] + integrate(diffusivity, times[p - 1], times[p]);
+    }
+    this.timeAt = (beta: number) => {
+      let p = 0;
+      while (p + 1 < pieces && cumulative[p + 1] < beta) p++;
+      const f = (beta - cumulative[p]) / (cumulative[p + 1] - cumulative[p]);
+      return Math.min(st.seconds, times[p] + Math.max(0, Math.min(1, f)) * (times[p + 1] - times[p]));
+    };
   }
-  const increments = [...lead, ...geometricSteps(total - used, first, growth)];
-  const implicitCount = lead.length + plan.numerics.startupSteps;
-  // Budget → time: cumulative budget of the reference species at the ends of many pieces,
-  // each by one five-point Gauss rule: across 1/256 of the widest ramp (800 K) D changes by
-  // under 10 %, and the rule integrates an exponential that flat to rounding.
-  const pieces = st.startC === st.endC ? 1 : 256;
-  const times = new Float64Array(pieces + 1);
-  const cumulative = new Float64Array(pieces + 1);
-  const diffusivity = (t: number) => intrinsicDiffusivity(reference.dopant, temperatureAt(st, t));
-  for (let p = 1; p <= pieces; p++) {
-    times[p] = (st.seconds * p) / pieces;
-    cumulative[p] = cumulative[p - 1] + integrate(diffusivity, times[p - 1], times[p]);
+
+  /** Time steps the clock gives if the speed-up stays where it started: an upper bound. */
+  static count(clock: StepClock): number {
+    let n = 0;
+    while (clock.next(Infinity)) n++;
+    return n;
   }
-  const timeAt = (beta: number) => {
-    let p = 0;
-    while (p + 1 < pieces && cumulative[p + 1] < beta) p++;
-    const f = (beta - cumulative[p]) / (cumulative[p + 1] - cumulative[p]);
-    return Math.min(st.seconds, times[p] + Math.max(0, Math.min(1, f)) * (times[p + 1] - times[p]));
-  };
-  const out: TimeStep[] = [];
-  let beta = 0;
-  let t = 0;
-  for (let k = 0; k < increments.length; k++) {
-    beta += increments[k];
-    const next = k === increments.length - 1 ? st.seconds : timeAt(beta);
-    if (next > t) out.push({ t0: t, t1: next, implicit: k < implicitCount });
-    t = next;
+
+  /** The next time step at the current peak speed-up (at most the starting one), or null at the end. */
+  next(speedup: number): TimeStep | null {
+    while (this.t < this.seconds) {
+      const k = this.k++;
+      let end: number;
+      if (this.fixed) {
+        if (k >= this.fixed.length) return null;
+        end = k === this.fixed.length - 1 ? this.seconds : this.timeAt((this.used += this.fixed[k]));
+      } else {
+        let increment: number;
+        let landing = false;
+        if (k < this.lead.length) {
+          increment = this.lead[k];
+        } else {
+          const growth = growthFor(this.plan, Math.min(speedup, this.speedup));
+          increment = k === this.lead.length ? this.first : this.last * growth;
+          const rest = this.total - this.used;
+          // Land on the duration: the rest in one step, or in two equal ones where one more
+          // step of this size would leave less than a step's growth.
+          if (increment >= rest) landing = true;
+          else if (increment * (1 + growth) > rest) increment = rest / 2;
+        }
+        this.last = increment;
+        this.used += increment;
+        end = landing ? this.seconds : this.timeAt(this.used);
+      }
+      if (end > this.t) {
+        const step = { t0: this.t, t1: end, implicit: k < this.implicitCount };
+        this.t = end;
+        return step;
+      }
+    }
+    return null;
   }
-  return out;
+
+  /** True once the last time step has been given. */
+  get finished(): boolean {
+    return this.t >= this.seconds;
+  }
 }
 
 /**
@@ -226,18 +303,21 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   for (let i = 0; i < mesh.nx; i++) hFine = Math.min(hFine, mesh.dx[i]);
   for (let j = 1; j < mesh.nz; j++) hFine = Math.min(hFine, mesh.z[j] - mesh.z[j - 1]);
 
-  // Plan every step's time steps first, so progress knows the total.
+  // Plan every step's time steps first, so progress knows the total (an upper bound where
+  // the steps follow a falling peak; it is brought down as each process step ends).
   const peaks = sourcePeaks(plan);
   const introduced = new Set<string>();
   const budgetBefore: Record<string, number> = {};
-  const schedules = steps.map((st) => {
+  const clocks = steps.map((st) => {
     if (st.dopant) introduced.add(st.dopant);
     const present = species.filter((s) => introduced.has(s.name));
-    const schedule = stepSchedule(plan, st, hFine, present, budgetBefore, speedupOf(st, present, peaks));
+    const before = { ...budgetBefore };
+    const speedup = speedupOf(st, present, peaks);
+    const clock = () => new StepClock(plan, st, hFine, present, before, speedup);
     for (const s of present) budgetBefore[s.name] = (budgetBefore[s.name] ?? 0) + (st.budgetUm2[s.name] ?? 0);
-    return schedule;
+    return { clock, count: StepClock.count(clock()) };
   });
-  const total = schedules.reduce((n, s) => n + s.length, 0);
+  let total = clocks.reduce((n, c) => n + c.count, 0);
   // Check the work before allocating any field.
   const work = total * cells;
   if (work > plan.limits.maxPointSteps) {
@@ -263,7 +343,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   const present: SpeciesPlan[] = [];
 
   for (const st of steps) {
-    const schedule = schedules[st.index];
+    const clock = clocks[st.index].clock();
     const sp = st.dopant ? species.find((s) => s.name === st.dopant)! : null;
     if (sp && !present.includes(sp)) present.push(sp);
     if (sp && st.kind === 'film' && st.doseCm2 !== null) {
@@ -281,8 +361,17 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
     coupled?.restart();
     let previousDt = 0;
     let damped = 0;
-    for (let k = 0; k < schedule.length; k++) {
-      const { t0, t1 } = schedule[k];
+    let issued = 0;
+    for (;;) {
+      // The speed-up at the peak the last step began from (the clock keeps to its own start
+      // for the first step, and never goes above it).
+      const speedup = coupled && issued > 0 ? speedupOf(st, present, coupled.peaks(peaks)) : Infinity;
+      const timeStep = clock.next(speedup);
+      if (!timeStep) break;
+      issued++;
+      // The progress total counted this step's time steps at its starting speed-up.
+      if (clock.finished) total -= clocks[st.index].count - issued;
+      const { t0, t1 } = timeStep;
       const dt = t1 - t0;
       const midC = temperatureAt(st, 0.5 * (t0 + t1));
       let surface = 0;
@@ -294,7 +383,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
       // DAMPED_STEPS): where the field has begun to ring, the next steps are split implicit.
       const budgets = present.map((s) => componentBudgets(st, s, t0, t1));
       if (coupled && coupled.prepare(concentration, present, budgets, midC, previousDt > 0 ? dt / (2 * previousDt) : 0)) damped = DAMPED_STEPS;
-      const scheme = schedule[k].implicit || damped > 0 ? 'split-implicit' : 'peaceman-rachford';
+      const scheme = timeStep.implicit || damped > 0 ? 'split-implicit' : 'peaceman-rachford';
       if (damped > 0) damped--;
       for (let n = 0; n < present.length; n++) {
         const s = present[n];
@@ -314,7 +403,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
       options.onProgress?.({ done, total, step: st.index, seconds: t1 });
       if (options.shouldStop?.()) throw new StoppedError();
     }
-    stepRecords.push({ index: st.index, kind: st.kind, timeSteps: schedule.length, seconds: st.seconds });
+    stepRecords.push({ index: st.index, kind: st.kind, timeSteps: issued, seconds: st.seconds });
   }
 
   const ledger: Record<string, LedgerEntry> = {};
@@ -352,6 +441,8 @@ function componentBudgets(st: StepPlan, s: SpeciesPlan, t0: number, t1: number):
 class CoupledDiffusivity {
   private readonly previous: Record<string, Float64Array> = {};
   private readonly hasPrevious = new Set<string>();
+  /** each species' largest value when prepare() last saw it, cm^-3 */
+  private readonly highest: Record<string, number> = {};
   private readonly net: Float64Array;
   /** ν at the nodes, row-major (both sweeps read it so) */
   private readonly nu: Float64Array;
@@ -367,6 +458,13 @@ class CoupledDiffusivity {
 
   restart(): void {
     this.hasPrevious.clear();
+  }
+
+  /** Each species' peak as the last prepare() saw it, where below its source peak. */
+  peaks(sources: Record<string, number>): Record<string, number> {
+    const out: Record<string, number> = { ...sources };
+    for (const [name, value] of Object.entries(this.highest)) out[name] = Math.min(out[name] ?? value, value);
+    return out;
   }
 
   /**
@@ -396,6 +494,7 @@ class CoupledDiffusivity {
         addExtrapolated(net, concentration[s.name], this.previous[s.name], w, sign, k === 0, substrate);
       }
       if (EXTREMES[0] < -RINGING * EXTREMES[1]) ringing = true;
+      this.highest[s.name] = EXTREMES[1];
       this.hasPrevious.add(s.name);
     }
     return ringing;
