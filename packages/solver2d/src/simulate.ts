@@ -1,4 +1,4 @@
-import { AdiStepper } from './adi.ts';
+import { AdiStepper, PRIMING_CALLS } from './adi.ts';
 import { RecipeError } from './recipe.ts';
 import { componentsAt, diffusivityAt, intrinsicDiffusivity, type ComponentDiffusivities } from './dopants.ts';
 import { addImplant } from './implant.ts';
@@ -454,6 +454,7 @@ class CoupledDiffusivity {
     for (const s of plan.species) this.previous[s.name] = new Float64Array(cells);
     this.net = new Float64Array(cells);
     this.nu = new Float64Array(cells);
+    primeHotLoops();
   }
 
   restart(): void {
@@ -514,6 +515,29 @@ class CoupledDiffusivity {
 
 /** The lowest and highest value addExtrapolated saw in C. */
 const EXTREMES = new Float64Array(2);
+
+let primed = false;
+
+/**
+ * Runs each hot loop below PRIMING_CALLS times over a few values, both signs and with and
+ * without the field factor, once per thread, so that the code after each loop has type
+ * feedback before the loop is compiled mid-call (see PRIMING_CALLS in adi.ts).
+ */
+function primeHotLoops(): void {
+  if (primed) return;
+  primed = true;
+  const c = Float64Array.of(1.5e20, 2.5e18, 0.5, -1.5e-3);
+  const prev = new Float64Array(c.length);
+  const net = new Float64Array(c.length);
+  const nu = new Float64Array(c.length);
+  for (let r = 0; r < PRIMING_CALLS; r++) {
+    const sign = r % 2 === 0 ? 1 : -1;
+    const field = r % 4 < 2;
+    addExtrapolated(net, c, prev, 0.5, sign, r % 3 === 0, 1.5e15);
+    nodeBudgets(nu, net, 7.5e18, sign, 1.5e-3, 2.5e-3, 0.5e-3, field);
+    extrapolatedBudgets(nu, c, prev, 0.5, sign, 1.5e15, 7.5e18, 1.5e-3, 2.5e-3, 0.5e-3, field);
+  }
+}
 
 /**
  * net += sign·max(C + w·(C − C_prev), 0), or with `first` net = base + the same (one pass
