@@ -5,7 +5,8 @@
  *   npx tsx test/bench/sweep.bench.ts [repeats]
  *
  * Each figure is the best of `repeats` (default 3): on a machine shared with other work the
- * best time is the one least disturbed. "In-sweep" is the time the sweep reports itself (from
+ * best time is the one least disturbed; each repeat's own 1-job/2-job pair is printed too, since the
+ * two bests can come from different minutes. "In-sweep" is the time the sweep reports itself (from
  * reading the recipe to the last file), without Node's start-up. Two references say how much
  * of a second core the machine gave at that moment: the same sweep as two independent
  * processes (`--shard 1/2` and `--shard 2/2`, one job each, started together), which is the
@@ -83,17 +84,22 @@ const best = { 1: { wall: Infinity, inSweep: Infinity }, 2: { wall: Infinity, in
 const bare = { 1: Infinity, 2: Infinity };
 const streaming = { 1: Infinity, 2: Infinity };
 let shards = Infinity;
+/** In-sweep efficiency of each repeat's own 1-job and 2-job runs, taken one after the other. */
+const pairs: number[] = [];
 for (let k = 0; k < repeats; k++) {
   shards = Math.min(shards, await twoShards(join(dir, 'shards')));
   bare[1] = Math.min(bare[1], await loop(1));
   bare[2] = Math.min(bare[2], await loop(2));
   streaming[1] = Math.min(streaming[1], await streamingLoop(1));
   streaming[2] = Math.min(streaming[2], await streamingLoop(2));
+  const pair: number[] = [];
   for (const jobs of [1, 2] as const) {
     const t = sweep(jobs, join(dir, `jobs-${jobs}`));
     best[jobs].wall = Math.min(best[jobs].wall, t.wall);
     best[jobs].inSweep = Math.min(best[jobs].inSweep, t.inSweep);
+    pair.push(t.inSweep);
   }
+  pairs.push((100 * pair[0]) / (2 * pair[1]));
 }
 rmSync(dir, { recursive: true, force: true });
 
@@ -104,6 +110,9 @@ console.log(`  wall, 1 job    ${best[1].wall.toFixed(2)} s   (${((best[1].inSwee
 console.log(`  wall, 2 jobs   ${best[2].wall.toFixed(2)} s`);
 console.log(`  in-sweep       ${best[1].inSweep.toFixed(2)} s / ${best[2].inSweep.toFixed(2)} s`);
 console.log(`  parallel efficiency T1/(2·T2): wall ${efficiency(best[1].wall, best[2].wall)}, in-sweep ${efficiency(best[1].inSweep, best[2].inSweep)} (target ≥ 80 %)`);
+const sorted = [...pairs].sort((a, b) => a - b);
+console.log(`  each repeat's own pair, in-sweep: ${pairs.map((e) => e.toFixed(0)).join(', ')} % (median ${sorted[Math.floor(sorted.length / 2)].toFixed(0)} %): ` +
+  'the spread is the machine\'s, minute to minute');
 console.log(`  two processes, one shard and one job each: ${shards.toFixed(2)} s wall, efficiency ${efficiency(best[1].wall, shards)} (the pool's ideal here)`);
 // Each loop thread does the same work, so there the efficiency is t1/t2 (not t1/(2·t2)).
 console.log(`  the machine meanwhile, a bare loop in 1 and in 2 threads (each the same work): ${bare[1].toFixed(2)} s / ${bare[2].toFixed(2)} s, ` +
