@@ -7,7 +7,7 @@
  * Each figure is the best of `repeats` (default 3): on a machine shared with other work the
  * best time is the one least disturbed; each repeat's own 1-job/2-job pair is printed too, since the
  * two bests can come from different minutes. "In-sweep" is the time the sweep reports itself (from
- * reading the recipe to the last file), without Node's start-up. Two references say how much
+ * every run planned to the last file), without Node's start-up or the planning. Two references say how much
  * of a second core the machine gave at that moment: the same sweep as two independent
  * processes (`--shard 1/2` and `--shard 2/2`, one job each, started together), which is the
  * pool's ideal on this machine; a bare arithmetic loop in 1 and in 2 threads; and a loop that
