@@ -14,16 +14,17 @@ const CS = 2e21;
 const NB = 1e16;
 const DOPANT = { type: 'donor', D0Cm2PerS: 1e-9, EaEv: 3.44, singlyCharged: { D0Cm2PerS: 12.0, EaEv: 4.05 } };
 
-function recipe(stepGrowth?: number) {
+/** The donor Xd into NB of boron through one window, with the given steps (invented scenarios). */
+function xdRecipe(title: string, widthUm: number, window: [number, number], steps: object[], stepGrowth?: number) {
   return {
-    title: 'test: D ∝ C constant source (invented)',
-    substrate: { dopant: 'B', concentrationCm3: NB },
-    crossSection: { widthUm: 10 },
-    mask: { windows: [[2, 8]] },
-    dopants: { Xd: DOPANT },
-    ...(stepGrowth ? { numerics: { stepGrowth } } : {}),
-    steps: [{ kind: 'predeposition', dopant: 'Xd', surfaceConcentrationCm3: CS, temperatureC: T, minutes: MINUTES }],
+    title, substrate: { dopant: 'B', concentrationCm3: NB }, crossSection: { widthUm }, mask: { windows: [window] },
+    dopants: { Xd: DOPANT }, ...(stepGrowth ? { numerics: { stepGrowth } } : {}), steps,
   };
+}
+
+function recipe(stepGrowth?: number) {
+  return xdRecipe('test: D ∝ C constant source (invented)', 10, [2, 8],
+    [{ kind: 'predeposition', dopant: 'Xd', surfaceConcentrationCm3: CS, temperatureC: T, minutes: MINUTES }], stepGrowth);
 }
 
 describe('concentration-dependent diffusion (charged-defect model, one species)', () => {
@@ -81,17 +82,8 @@ describe('concentration-dependent diffusion (charged-defect model, one species)'
 describe('concentration-dependent diffusion from a fixed dose (Barenblatt–Pattle solution)', () => {
   const DOSE = 2e16;
   const DRIVE_MINUTES = 30;
-  function filmRecipe(stepGrowth?: number) {
-    return {
-      title: 'test: D ∝ C fixed dose, thin film then sealed drive-in (invented)',
-      substrate: { dopant: 'B', concentrationCm3: NB },
-      crossSection: { widthUm: 12 },
-      mask: { windows: [[1, 11]] },
-      dopants: { Xd: DOPANT },
-      ...(stepGrowth ? { numerics: { stepGrowth } } : {}),
-      steps: [{ kind: 'film', dopant: 'Xd', doseCm2: DOSE }, { kind: 'drive-in', temperatureC: T, minutes: DRIVE_MINUTES }],
-    };
-  }
+  const filmRecipe = (stepGrowth?: number) => xdRecipe('test: D ∝ C fixed dose, thin film then sealed drive-in (invented)', 12, [1, 11],
+    [{ kind: 'film', dopant: 'Xd', doseCm2: DOSE }, { kind: 'drive-in', temperatureC: T, minutes: DRIVE_MINUTES }], stepGrowth);
   const ni = niRef(T);
   const a = (2 * arrheniusUm2PerS(DOPANT.singlyCharged.D0Cm2PerS, DOPANT.singlyCharged.EaEv, T)) / ni;
   const tau = (a * DRIVE_MINUTES * 60) / 2;

@@ -68,9 +68,9 @@ export class StoppedError extends Error {
 const FIRST_STEP_MESH_NUMBER = 0.25;
 
 /**
- * Where D depends strongly on concentration (the peak diffuses s > 1.5 times faster than
- * intrinsic), steps grow by at most 1 + 0.4/√s: Peaceman–Rachford with variable, non-
- * commuting coefficients is not unconditionally stable. Measured on D ∝ C fronts: at
+ * Where D depends strongly on concentration (the peak, as it is at each step, diffuses
+ * s > 1.5 times faster than intrinsic), steps grow by at most 1 + 0.4/√s: Peaceman–Rachford
+ * with variable, non-commuting coefficients is not unconditionally stable. Measured on D ∝ C fronts: at
  * s ≈ 140 (Cs/ni ≈ 70) growth 1.035 was stable with xj within 0.1 % of the step-converged
  * value, 1.07 was 1.6 % off and 1.14 diverged; at s ≈ 560 the same accuracy took 1.0175.
  */
@@ -132,8 +132,9 @@ function growthFor(plan: Plan, speedup: number): number {
  * implant or film spreads during its anneal, and its peak with it). The first step and the
  * lead-in are set by the speed-up the clock starts with, which is the largest the step can
  * see; later speed-ups are no larger, so a step never takes more time steps than
- * `StepClock.count` says, and the work limit is checked on that count. Elsewhere the sequence is fixed
- * (`geometricSteps`, which lands on the duration with a ratio at most the growth).
+ * `StepClock.count` says, and the work limit is checked on that count. Elsewhere the
+ * sequence is fixed (`geometricSteps`, which lands on the duration with a ratio at most the
+ * growth).
  */
 class StepClock {
   private readonly total: number;
