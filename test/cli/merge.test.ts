@@ -1,4 +1,4 @@
-import { existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { edgewise, tempDir } from '../support/cli.ts';
@@ -68,6 +68,20 @@ describe('edgewise sweep --shard K/N and edgewise merge', () => {
     const r = edgewise(['merge', apart, '--out', out]);
     expect(r.code).toBe(2);
     expect(r.stderr.trimEnd()).toBe('edgewise: merge: missing shards 1/3, 2/3 (found 3/3)');
+    expect(existsSync(out)).toBe(false);
+  });
+
+  it('a shard file that cannot be read is named with the cause in words, exit 2, nothing written', () => {
+    // A folder where the shard's table should be: the read fails with EISDIR.
+    const broken = join(dir, 'broken');
+    expect(edgewise(['sweep', recipePath, '--shard', '1/1', '--out', broken, '--error-solves', '0', '--quiet']).code).toBe(0);
+    const table = join(broken, 'sweep-shard-1-of-1.csv');
+    rmSync(table);
+    mkdirSync(table);
+    const out = join(dir, 'from-broken');
+    const r = edgewise(['merge', broken, '--out', out]);
+    expect(r.code).toBe(2);
+    expect(r.stderr.trimEnd()).toBe(`edgewise: ${table}: cannot be read: it is a folder, not a file; give the file inside it`);
     expect(existsSync(out)).toBe(false);
   });
 

@@ -1,7 +1,7 @@
 import { existsSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import { join, relative, resolve, sep } from 'node:path';
 import { parseArgs } from 'node:util';
-import { InputError, UsageError } from '../errors.ts';
+import { fileSystemError, InputError, UsageError } from '../errors.ts';
 import { inside, writeAtomic } from '../files.ts';
 import { encodeCsv, parseCsv } from '../sweep/csv.ts';
 import { SWEEP_SCHEMA_ID, type SweepDocument, type SweepRunEntry } from '../sweep/record.ts';
@@ -18,12 +18,22 @@ interface ShardFiles {
   rows: string[][];
 }
 
+/** A shard file's text; a file-system error becomes one line naming the file and the cause. */
+function readText(path: string): string {
+  try {
+    return readFileSync(path, 'utf8');
+  } catch (e) {
+    throw fileSystemError(e, 'read', path) ?? e;
+  }
+}
+
 function readShard(folder: string, name: string): ShardFiles {
   const jsonPath = join(folder, name);
   const csvPath = jsonPath.replace(/\.json$/, '.csv');
   let doc: SweepDocument;
+  const jsonText = readText(jsonPath);
   try {
-    doc = JSON.parse(readFileSync(jsonPath, 'utf8')) as SweepDocument;
+    doc = JSON.parse(jsonText) as SweepDocument;
   } catch (e) {
     throw new InputError(`${jsonPath}: is not readable JSON: ${(e as Error).message.split('\n')[0]}`);
   }
@@ -32,8 +42,9 @@ function readShard(folder: string, name: string): ShardFiles {
   }
   if (!existsSync(csvPath)) throw new InputError(`${csvPath}: is missing (every shard writes a .csv beside its .json)`);
   let table: string[][];
+  const csvText = readText(csvPath);
   try {
-    table = parseCsv(readFileSync(csvPath, 'utf8'));
+    table = parseCsv(csvText);
   } catch (e) {
     throw new InputError(`${csvPath}: is not readable CSV: ${(e as Error).message}`);
   }
