@@ -110,7 +110,8 @@ describe('writeAtomic: a failed write leaves the old file whole', () => {
   it('the rename fails: the old file is as it was, no temporary is left', () => {
     const { dir, path } = setUp();
     fault.rename = true;
-    expect(() => writeAtomic(path, NEW)).toThrow(/EIO/);
+    expect(() => writeAtomic(path, NEW)).toThrow(new EnvironmentError(
+      `${path}: cannot be written: input/output error: the disk or its connection failed; check the disk, or choose a folder on another disk with --out`));
     expect(realFs.readFileSync(path, 'utf8')).toBe(OLD);
     expect(realFs.readdirSync(dir)).toEqual(['report.json']);
   });
@@ -174,6 +175,16 @@ describe('main(): a write the file system refuses ends in one line and its exit 
     const r = await runMain(['run', recipe, '--out', out, '--quiet', '--error-solves', '0']);
     expect(r.code).toBe(1);
     expect(r.stderr).toBe(`edgewise: ${out}/field.npy: cannot be written: no space left on device; free some space, or choose a folder on another disk with --out\n`);
+    expect(walk(out)).toEqual([]);
+  });
+
+  it('a failing disk (EIO): exit 1, one line, no stack; no temporary is left', async () => {
+    const { recipe, out } = setUp();
+    fault.rename = true;
+    const r = await runMain(['run', recipe, '--out', out, '--quiet', '--error-solves', '0']);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toBe(`edgewise: ${out}/field.npy: cannot be written: input/output error: the disk or its connection failed; ` +
+      'check the disk, or choose a folder on another disk with --out\n');
     expect(walk(out)).toEqual([]);
   });
 

@@ -54,6 +54,7 @@ const CAUSES: Record<string, Cause> = {
   EISDIR: { cause: 'it is a folder, not a file', read: 'give the file inside it', write: 'move that folder away, or choose another folder with --out', input: true },
   ENOSPC: { cause: 'no space left on device', read: NO_SPACE_FIX, write: NO_SPACE_FIX, input: false },
   EDQUOT: { cause: 'disk quota exceeded', read: NO_SPACE_FIX, write: NO_SPACE_FIX, input: false },
+  EIO: { cause: 'input/output error: the disk or its connection failed', read: 'check the disk, then try again', write: 'check the disk, or choose a folder on another disk with --out', input: false },
 };
 
 /**
