@@ -213,6 +213,7 @@ describe('fileSystemError: what each file-system error says, and whose fault it 
     ['ENOTDIR', 'write', 'out/field.npy: cannot be written: a part of the path is a file, not a folder; move that file away, or choose another folder with --out', InputError],
     ['ENOSPC', 'write', 'out/field.npy: cannot be written: no space left on device; free some space, or choose a folder on another disk with --out', EnvironmentError],
     ['EDQUOT', 'write', 'out/field.npy: cannot be written: disk quota exceeded; free some space, or choose a folder on another disk with --out', EnvironmentError],
+    ['EIO', 'read', 'out/field.npy: cannot be read: input/output error: the disk or its connection failed; check the disk, then try again', EnvironmentError],
   ];
   for (const [code, access, line, kind] of CASES) {
     it(`${code} while ${access === 'read' ? 'reading' : 'writing'}: ${kind.name}`, () => {
@@ -222,8 +223,8 @@ describe('fileSystemError: what each file-system error says, and whose fault it 
     });
   }
 
-  it('an error it does not know (EIO), or one that is not from the file system: null, for the caller to rethrow', () => {
-    expect(fileSystemError(error('EIO'), 'write', 'out/field.npy')).toBeNull();
+  it('an error it does not know (EBUSY), or one that is not from the file system: null, for the caller to rethrow', () => {
+    expect(fileSystemError(error('EBUSY'), 'write', 'out/field.npy')).toBeNull();
     expect(fileSystemError(new Error('plain'), 'write', 'out/field.npy')).toBeNull();
     expect(fileSystemError(null, 'read', 'out/field.npy')).toBeNull();
   });
