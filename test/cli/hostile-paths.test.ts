@@ -1,5 +1,5 @@
 import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, realpathSync, symlinkSync, writeFileSync } from 'node:fs';
-import { join } from 'node:path';
+import { dirname, join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { EnvironmentError, fileSystemError, InputError } from '../../packages/cli/src/errors.ts';
 import { inside } from '../../packages/cli/src/files.ts';
@@ -15,6 +15,15 @@ import { csvFields, edgewise, REPO, tempDir } from '../support/cli.ts';
  * the program sees.
  */
 const base = () => realpathSync(tempDir('edgewise-paths-'));
+
+/** A file outside the output folder, holding "keep\n", and a link to it at `link` (its folders made). */
+function linkedFileOutside(dir: string, link: string): string {
+  const victim = join(dir, 'victim.json');
+  writeFileSync(victim, 'keep\n');
+  mkdirSync(dirname(link), { recursive: true });
+  symlinkSync(victim, link);
+  return victim;
+}
 
 function recipeIn(dir: string): string {
   const path = join(dir, 'recipe.json');
@@ -47,11 +56,9 @@ describe('inside(): a symbolic link under the folder cannot lead a write out of 
 
   it('a file that is a link to a file outside', () => {
     const dir = base();
-    mkdirSync(join(dir, 'out'));
-    writeFileSync(join(dir, 'victim.json'), 'keep');
-    symlinkSync(join(dir, 'victim.json'), join(dir, 'out', 'report.json'));
+    const victim = linkedFileOutside(dir, join(dir, 'out', 'report.json'));
     expect(() => inside(join(dir, 'out'), 'report.json')).toThrow(new InputError(
-      `refusing to write outside the output folder ${dir}/out: report.json leads to ${dir}/victim.json through a symbolic link`));
+      `refusing to write outside the output folder ${dir}/out: report.json leads to ${victim} through a symbolic link`));
   });
 
   it('a relative link that climbs out (../../elsewhere)', () => {
@@ -112,10 +119,7 @@ describe('the real binary: links under --out that lead outside are refused, noth
     const dir = base();
     const recipe = recipeIn(dir);
     const out = join(dir, 'out');
-    const victim = join(dir, 'victim.json');
-    writeFileSync(victim, 'keep\n');
-    mkdirSync(join(out, 'run-0001'), { recursive: true });
-    symlinkSync(victim, join(out, 'run-0001', 'report.json'));
+    const victim = linkedFileOutside(dir, join(out, 'run-0001', 'report.json'));
     const r = edgewise(['sweep', recipe, '--widths', '4,5', '--out', out, '--jobs', '1', '--error-solves', '0', '--quiet']);
     expect(r.code, r.stderr).toBe(3);
     const error = `InputError: refusing to write outside the output folder ${out}: run-0001/report.json leads to ${victim} through a symbolic link`;
@@ -133,10 +137,7 @@ describe('the real binary: links under --out that lead outside are refused, noth
     const dir = base();
     const recipe = recipeIn(dir);
     const out = join(dir, 'out');
-    const victim = join(dir, 'victim.json');
-    writeFileSync(victim, 'keep\n');
-    mkdirSync(out);
-    symlinkSync(victim, join(out, 'report.json'));
+    const victim = linkedFileOutside(dir, join(out, 'report.json'));
     const r = edgewise(['run', recipe, '--out', out, '--error-solves', '0', '--quiet']);
     expect(r.code, r.stderr).toBe(2);
     expect(r.stderr).toBe(`edgewise: refusing to write outside the output folder ${out}: report.json leads to ${victim} through a symbolic link\n`);
