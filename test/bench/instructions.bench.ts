@@ -6,21 +6,19 @@
  *   for reps in 0 2; do valgrind --tool=cachegrind --cache-sim=no --cachegrind-out-file=/dev/null \
  *     node --single-threaded scripts/run-ts.mjs test/bench/instructions.bench.ts examples/base-resistor.json charged-defect $reps; done
  *
- * Half the difference of the two "I refs" totals is one solve. MODEL (intrinsic or
- * charged-defect) is set for every species; the mesh is the charged-defect plan's, as in the
- * nonlinear/linear comparison of solver.bench.ts.
+ * Half the difference of the two "I refs" totals is one solve. The plans are those of the
+ * nonlinear/linear comparison in solver.bench.ts (`modelPlans`).
  */
 import { resolve } from 'node:path';
-import { parseRecipe, planRecipe, simulate } from '../../packages/solver2d/src/index.ts';
+import { simulate } from '../../packages/solver2d/src/index.ts';
 import { readRecipeFile } from '../../packages/cli/src/read-recipe.ts';
+import { modelPlans } from './reference-case.ts';
 
 const [file, model, reps] = [process.argv[2], process.argv[3], Number(process.argv[4])];
 if (!file || (model !== 'intrinsic' && model !== 'charged-defect') || !(reps >= 0)) {
   process.stderr.write('usage: instructions.bench.ts RECIPE intrinsic|charged-defect REPS\n');
   process.exit(2);
 }
-const recipe = readRecipeFile(resolve(file)) as { diffusion?: object };
-const withModel = (m: string) => parseRecipe({ ...recipe, diffusion: { ...(recipe.diffusion ?? {}), model: m, species: undefined } });
-const nonlinear = planRecipe(withModel('charged-defect'));
-const plan = model === 'charged-defect' ? nonlinear : { ...planRecipe(withModel('intrinsic')), mesh: nonlinear.mesh, mask: nonlinear.mask };
+const plans = modelPlans(readRecipeFile(resolve(file)));
+const plan = model === 'charged-defect' ? plans.nonlinear : plans.linear;
 for (let r = 0; r < 3 + reps; r++) simulate(plan);

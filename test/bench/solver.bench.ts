@@ -16,7 +16,7 @@ import { buildMask } from '../../packages/solver2d/src/mask.ts';
 import { buildMesh, uniformAxis } from '../../packages/solver2d/src/mesh.ts';
 import { analyze, parseRecipe, planRecipe, simulate } from '../../packages/solver2d/src/index.ts';
 import { readRecipeFile } from '../../packages/cli/src/read-recipe.ts';
-import { referenceRecipe } from './reference-case.ts';
+import { modelPlans, referenceRecipe } from './reference-case.ts';
 
 function best<T>(repeats: number, f: () => T): { ms: number; value: T } {
   let ms = Infinity;
@@ -82,9 +82,7 @@ console.log('nonlinear profile (the deeper one); CPU time, best of 8 runs taken 
   };
   for (const [name, recipe] of cases) {
     // One model for every species: the recipe's own per-species choices are set aside.
-    const withModel = (model: string) => parseRecipe({ ...(recipe as object), diffusion: { ...((recipe as { diffusion?: object }).diffusion ?? {}), model, species: undefined } });
-    const nonlinearPlan = planRecipe(withModel('charged-defect'));
-    const linearPlan = { ...planRecipe(withModel('intrinsic')), mesh: nonlinearPlan.mesh, mask: nonlinearPlan.mask };
+    const { nonlinear: nonlinearPlan, linear: linearPlan } = modelPlans(recipe);
     let lin = Infinity;
     let non = Infinity;
     // Each pair's own ratio too: the machine's speed drifts from second to second, and the two
