@@ -132,7 +132,7 @@ function growthFor(plan: Plan, speedup: number): number {
  * implant or film spreads during its anneal, and its peak with it). The first step and the
  * lead-in are set by the speed-up the clock starts with, which is the largest the step can
  * see; later speed-ups are no larger, so a step never takes more time steps than
- * `StepClock.count` says, and the work limit is checked on that count. Elsewhere the
+ * `count()` says, and the work limit is checked on that count. Elsewhere the
  * sequence is fixed (`geometricSteps`, which lands on the duration with a ratio at most the
  * growth).
  */
@@ -209,10 +209,14 @@ class StepClock {
     };
   }
 
-  /** Time steps the clock gives if the speed-up stays where it started: an upper bound. */
-  static count(clock: StepClock): number {
+  /**
+   * Time steps the clock gives if the speed-up stays where it started (an upper bound), then
+   * back to the start, so that the same clock runs the step.
+   */
+  count(): number {
     let n = 0;
-    while (clock.next(Infinity)) n++;
+    while (this.next(Infinity)) n++;
+    this.k = this.used = this.last = this.t = 0;
     return n;
   }
 
@@ -312,11 +316,9 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   const clocks = steps.map((st) => {
     if (st.dopant) introduced.add(st.dopant);
     const present = species.filter((s) => introduced.has(s.name));
-    const before = { ...budgetBefore };
-    const speedup = speedupOf(st, present, peaks);
-    const clock = () => new StepClock(plan, st, hFine, present, before, speedup);
+    const clock = new StepClock(plan, st, hFine, present, budgetBefore, speedupOf(st, present, peaks));
     for (const s of present) budgetBefore[s.name] = (budgetBefore[s.name] ?? 0) + (st.budgetUm2[s.name] ?? 0);
-    return { clock, count: StepClock.count(clock()) };
+    return { clock, count: clock.count() };
   });
   let total = clocks.reduce((n, c) => n + c.count, 0);
   // Check the work before allocating any field.
@@ -344,7 +346,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   const present: SpeciesPlan[] = [];
 
   for (const st of steps) {
-    const clock = clocks[st.index].clock();
+    const { clock } = clocks[st.index];
     const sp = st.dopant ? species.find((s) => s.name === st.dopant)! : null;
     if (sp && !present.includes(sp)) present.push(sp);
     if (sp && st.kind === 'film' && st.doseCm2 !== null) {
