@@ -59,6 +59,16 @@ interface SweepSetup {
   heldFirstOnly: Uint8Array | null;
 }
 
+/**
+ * Rows and columns on which ν is one value at every node (where no dopant has arrived, ν is
+ * the background's): `rows[j]` = 1 for row j, `columns[i]` = 1 for column i.
+ */
+export interface UniformLines {
+  nu: number;
+  rows: Uint8Array;
+  columns: Uint8Array;
+}
+
 export class AdiStepper {
   readonly nx: number;
   readonly nz: number;
@@ -83,6 +93,9 @@ export class AdiStepper {
   private readonly savedRows: Float64Array;
   /** Thomas factors of the four lines of a block, for variable D */
   private readonly cpBlock: Float64Array;
+  /** per row (x sweep) and per column (z sweep): 1 where the line and both neighbours have one ν */
+  private readonly flatRows: Uint8Array;
+  private readonly flatColumns: Uint8Array;
 
   constructor(mesh: Mesh, mask: Mask) {
     primeKernels();
@@ -126,6 +139,8 @@ export class AdiStepper {
     this.star = new Float64Array(nx * nz);
     this.savedRows = new Float64Array(2 * nx);
     this.cpBlock = new Float64Array(4 * n);
+    this.flatRows = new Uint8Array(nz);
+    this.flatColumns = new Uint8Array(nx);
   }
 
   /** Atoms per unit length of cross-section, in cm^-3·µm², i.e. Σ C·Δx·Δz. */
@@ -185,9 +200,12 @@ export class AdiStepper {
   /**
    * The same step with D varying in space (concentration-dependent diffusion): `nu` holds
    * ν = D·τ at every node (row-major, like `c`); a face takes the mean of its two nodes.
-   * Lines are factorised one at a time since no two share a matrix.
+   * Lines are factorised one at a time since no two share a matrix, except where `uniform`
+   * says ν is one value on a line and on both its neighbours: every face such a line touches
+   * has that ν, and the line is solved with the factor shared by all of them, as `step` does
+   * (the same equations; the same result to rounding).
    */
-  stepVariable(c: Float64Array, nu: Float64Array, scheme: Scheme, held: boolean, surfaceValue: number): number {
+  stepVariable(c: Float64Array, nu: Float64Array, scheme: Scheme, held: boolean, surfaceValue: number, uniform: UniformLines | null = null): number {
     const { nx, nz, ax, cx, az, cz } = this;
     const pr = scheme === 'peaceman-rachford';
     const implicit = pr ? 0.5 : 1;
@@ -195,10 +213,20 @@ export class AdiStepper {
     if (held) this.savedRows.set(c.subarray(0, 2 * nx));
     const rowHeld = held ? this.surfaceRowKind : this.noneHeldX;
     const columnHeld = held ? this.openColumnKind : this.sealedZKind;
+    let flatRows: Uint8Array | null = null;
+    let flatColumns: Uint8Array | null = null;
+    if (uniform !== null) {
+      // Shared factors for ν = uniform.nu; held lines keep their own path.
+      this.prepare(implicit * uniform.nu, explicit * uniform.nu, false);
+      flatRows = flatLines(uniform.rows, rowHeld, this.flatRows);
+      flatColumns = flatLines(uniform.columns, columnHeld, this.flatColumns);
+    }
     // ν stays row-major for both sweeps: along a row (x sweep) consecutive, along a column
     // (z sweep) a row apart, where the four columns of a block read neighbouring values.
-    variableSweep(c, this.star, nu, nx, 1, nx, nz, ax, cx, az, cz, implicit, explicit, this.cpBlock, rowHeld, this.open, false, surfaceValue);
-    variableSweep(this.star, c, nu, 1, nx, nz, nx, az, cz, ax, cx, implicit, explicit, this.cpBlock, columnHeld, this.zSweep.heldAlong, true, surfaceValue);
+    variableSweep(c, this.star, nu, nx, 1, nx, nz, ax, cx, az, cz, implicit, explicit, this.cpBlock, rowHeld, this.open, false, surfaceValue,
+      flatRows, this.xSweep);
+    variableSweep(this.star, c, nu, 1, nx, nz, nx, az, cz, ax, cx, implicit, explicit, this.cpBlock, columnHeld, this.zSweep.heldAlong, true, surfaceValue,
+      flatColumns, this.zSweep);
     return held ? this.inflowVariable(c, nu, pr) : 0;
   }
 
@@ -310,6 +338,14 @@ function primeKernels(): void {
   const c = new Float64Array(mesh.nx * mesh.nz);
   const nu = new Float64Array(mesh.nx * mesh.nz);
   for (let k = 0; k < nu.length; k++) nu[k] = 1.5e-3 * (1 + (k % 3) * 0.25);
+  // Rows 3–9 and columns 7–12 at one ν: a block of four flat lines in each sweep, and lines
+  // that are uniform but not flat.
+  const uniform: UniformLines = { nu: 1.5e-3, rows: new Uint8Array(mesh.nz), columns: new Uint8Array(mesh.nx) };
+  uniform.rows.fill(1, 3);
+  uniform.columns.fill(1, 7);
+  for (let j = 0; j < mesh.nz; j++) {
+    for (let i = 0; i < mesh.nx; i++) if (uniform.rows[j] === 1 || uniform.columns[i] === 1) nu[j * mesh.nx + i] = uniform.nu;
+  }
   for (let r = 0; r < PRIMING_CALLS; r++) {
     for (const scheme of ['peaceman-rachford', 'split-implicit'] as const) {
       stepper.holdSurface(c, 1.5e20);
@@ -317,6 +353,8 @@ function primeKernels(): void {
       stepper.step(c, 1.5e-3, scheme, false, 0);
       stepper.stepVariable(c, nu, scheme, true, 1.5e20);
       stepper.stepVariable(c, nu, scheme, false, 0);
+      stepper.stepVariable(c, nu, scheme, true, 1.5e20, uniform);
+      stepper.stepVariable(c, nu, scheme, false, 0, uniform);
     }
     stepper.content(c);
     stepper.bottomRowFinite(c);
@@ -418,12 +456,14 @@ function sweepLine(src: Float64Array, dst: Float64Array, s: SweepSetup, q: numbe
 function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number,
                        gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
                        beta: number, e: number, cp: Float64Array, kind: Uint8Array, heldAlong: Uint8Array,
-                       firstOnly: boolean, heldValue: number): void {
+                       firstOnly: boolean, heldValue: number, flat: Uint8Array | null, shared: SweepSetup): void {
   let q = 0;
   for (; q + 4 <= m; q += 4) {
     const k0 = kind[q];
-    const uniform = k0 === kind[q + 1] && k0 === kind[q + 2] && k0 === kind[q + 3];
-    if (uniform && (k0 === 0 || firstOnly)) {
+    const sameKind = k0 === kind[q + 1] && k0 === kind[q + 2] && k0 === kind[q + 3];
+    if (flat !== null && flat[q] + flat[q + 1] + flat[q + 2] + flat[q + 3] === 4) {
+      sweepBlock(src, dst, shared, q, shared.free, false, 0);
+    } else if (sameKind && (k0 === 0 || firstOnly)) {
       variableBlock(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, k0 === 1, heldValue);
     } else {
       for (let r = q; r < q + 4; r++) {
@@ -432,6 +472,20 @@ function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, n
     }
   }
   for (; q < m; q++) variableLine(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[q] === 1 ? heldAlong : null, heldValue);
+}
+
+/**
+ * Lines that can take the shared factor: ν uniform on the line and on both neighbours (a
+ * line at the edge has one), and not held. Returns `out`.
+ */
+function flatLines(uniform: Uint8Array, kind: Uint8Array, out: Uint8Array): Uint8Array {
+  const m = out.length;
+  for (let q = 0; q < m; q++) {
+    const before = q > 0 ? uniform[q - 1] : 1;
+    const after = q < m - 1 ? uniform[q + 1] : 1;
+    out[q] = uniform[q] === 1 && before === 1 && after === 1 && kind[q] === 0 ? 1 : 0;
+  }
+  return out;
 }
 
 /**

@@ -1,4 +1,4 @@
-import { AdiStepper, PRIMING_CALLS } from './adi.ts';
+import { AdiStepper, PRIMING_CALLS, type UniformLines } from './adi.ts';
 import { RecipeError } from './recipe.ts';
 import { componentsAt, diffusivityAt, intrinsicDiffusivity, type ComponentDiffusivities } from './dopants.ts';
 import { addImplant } from './implant.ts';
@@ -102,6 +102,16 @@ const LEAD_SHARE = 0.5;
  */
 const RINGING = 1e-6;
 const DAMPED_STEPS = 3;
+
+/**
+ * Where no dopant has arrived, ν is the background's (substrate doping alone) at every node.
+ * A row or column whose ν is within this fraction of it everywhere takes exactly that value,
+ * and the stepper solves such lines with one shared factor (the constant-D kernel, about half
+ * the cost). 1e-6 of D moves a junction by about 5e-7 of its depth, far below the
+ * discretisation's own error; ν on a line's faces stays one value seen from both sides, so
+ * the step stays exactly conservative.
+ */
+const UNIFORM_TOLERANCE = 1e-6;
 
 /** Not below 1.01, which bounds a step at about 700 time steps whatever the speed-up. */
 function nonlinearGrowth(speedup: number): number {
@@ -395,7 +405,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
         const nu = budgets[n];
         if (coupled && s.model === 'charged-defect') {
           const node = coupled.nodeBudgets(s, nu);
-          entered[s.name] += stepper.stepVariable(c, node, scheme, isHeld, surface);
+          entered[s.name] += stepper.stepVariable(c, node, scheme, isHeld, surface, coupled.uniformLines());
         } else {
           entered[s.name] += stepper.step(c, nu.neutral + nu.single + nu.double, scheme, isHeld, surface);
         }
@@ -452,11 +462,18 @@ class CoupledDiffusivity {
   private ni = 1;
   /** the species whose ν prepare() already made, if any */
   private fused: SpeciesPlan | null = null;
+  /** rows and columns where ν is the background's, as nodeBudgets() last found them */
+  private readonly uniform: UniformLines;
+  private readonly deviation: Float64Array;
+  private uniformCount = 0;
 
   constructor(private readonly plan: Plan, cells: number) {
     for (const s of plan.species) this.previous[s.name] = new Float64Array(cells);
     this.net = new Float64Array(cells);
     this.nu = new Float64Array(cells);
+    const { nx, nz } = plan.mesh;
+    this.uniform = { nu: 0, rows: new Uint8Array(nz), columns: new Uint8Array(nx) };
+    this.deviation = new Float64Array(nx);
     primeHotLoops();
   }
 
@@ -491,8 +508,12 @@ class CoupledDiffusivity {
       const sign = s.type === 'donor' ? 1 : -1;
       if (present.length === 1 && s.model === 'charged-defect') {
         const b = budgets[k];
+        const double = s.type === 'donor' ? b.double : 0;
+        const ref = this.background(s, b);
+        const limit = UNIFORM_TOLERANCE * ref;
+        const reach = backgroundReach(this.backgroundU(s), this.ni, b.neutral, b.single, double, s.fieldEnhancement, ref, limit);
         extrapolatedBudgets(this.nu, concentration[s.name], this.previous[s.name], w, sign, substrate, this.ni,
-          b.neutral, b.single, s.type === 'donor' ? b.double : 0, s.fieldEnhancement);
+          b.neutral, b.single, double, s.fieldEnhancement, plan.mesh.nx, ref, limit, reach, this.uniform.rows, this.deviation);
         this.fused = s;
       } else {
         addExtrapolated(net, concentration[s.name], this.previous[s.name], w, sign, k === 0, substrate);
@@ -504,14 +525,69 @@ class CoupledDiffusivity {
     return ringing;
   }
 
-  /** ν = D·τ at every node for one species from its term budgets. */
+  /**
+   * ν = D·τ at every node for one species from its term budgets; lines where it is the
+   * background's (see UNIFORM_TOLERANCE) are set to exactly that and marked.
+   */
   nodeBudgets(s: SpeciesPlan, b: ComponentDiffusivities): Float64Array {
-    if (this.fused === s) return this.nu;
-    const sign = s.type === 'donor' ? 1 : -1;
-    // An acceptor sees p/ni, which is n/ni with the sign of the net doping turned over.
-    nodeBudgets(this.nu, this.net, this.ni, sign, b.neutral, b.single, s.type === 'donor' ? b.double : 0, s.fieldEnhancement);
-    return this.nu;
+    const { nx, nz } = this.plan.mesh;
+    const { nu, uniform } = this;
+    if (this.fused !== s) {
+      const sign = s.type === 'donor' ? 1 : -1;
+      // An acceptor sees p/ni, which is n/ni with the sign of the net doping turned over.
+      const ref = this.background(s, b);
+      nodeBudgets(nu, this.net, this.ni, sign, b.neutral, b.single, s.type === 'donor' ? b.double : 0, s.fieldEnhancement,
+        nx, ref, UNIFORM_TOLERANCE * ref, uniform.rows, this.deviation);
+    }
+    this.uniformCount = uniformColumns(nu, nx, nz, uniform.nu, UNIFORM_TOLERANCE * uniform.nu, uniform.rows, uniform.columns, this.deviation);
+    return nu;
   }
+
+  /** u (see nodeBudgets) where the substrate alone sets n and p, for one species. */
+  private backgroundU(s: SpeciesPlan): number {
+    const { substrate } = this.plan;
+    return ((substrate.type === 'donor' ? 1 : -1) * (s.type === 'donor' ? 1 : -1) * substrate.concentrationCm3) / (2 * this.ni);
+  }
+
+  /** ν there over the coming step; remembered as the uniform lines' value. */
+  private background(s: SpeciesPlan, b: ComponentDiffusivities): number {
+    this.uniform.nu = budgetAt(this.backgroundU(s), b.neutral, b.single, s.type === 'donor' ? b.double : 0, s.fieldEnhancement);
+    return this.uniform.nu;
+  }
+
+  /** The lines nodeBudgets() last found uniform, or null where there were none. */
+  uniformLines(): UniformLines | null {
+    return this.uniformCount > 0 ? this.uniform : null;
+  }
+}
+
+/** ν at one node from u (see nodeBudgets), for the background's value. */
+function budgetAt(u: number, neutral: number, single: number, double: number, field: boolean): number {
+  const root = Math.sqrt(u * u + 1);
+  const r = u >= 0 ? u + root : 1 / (root - u);
+  const h = field && u > 0 ? 1 + u / root : 1;
+  return (neutral + single * r + double * r * r) * h;
+}
+
+/**
+ * The largest concentration (cm^-3) of a lone species at which its ν is within `limit` of
+ * the background's `ref` (u = `background` there; u grows by C/2ni): ν grows with u when
+ * no term is negative, so every lower concentration is within it too. −1 where a term is
+ * negative (no such bound is claimed).
+ */
+function backgroundReach(background: number, ni: number, neutral: number, single: number, double: number, field: boolean,
+                         ref: number, limit: number): number {
+  if (neutral < 0 || single < 0 || double < 0) return -1;
+  const within = (c: number) => budgetAt(background + c / (2 * ni), neutral, single, double, field) - ref <= limit;
+  let high = ni;
+  while (within(high) && high < 1e30) high *= 1e3;
+  let low = 0;
+  for (let k = 0; k < 64; k++) {
+    const mid = 0.5 * (low + high);
+    if (within(mid)) low = mid;
+    else high = mid;
+  }
+  return low;
 }
 
 // The hot loops of CoupledDiffusivity, each a function of its own over typed arrays.
@@ -533,12 +609,20 @@ function primeHotLoops(): void {
   const prev = new Float64Array(c.length);
   const net = new Float64Array(c.length);
   const nu = new Float64Array(c.length);
+  const rows = new Uint8Array(2);
+  const columns = new Uint8Array(2);
+  const deviation = new Float64Array(2);
   for (let r = 0; r < PRIMING_CALLS; r++) {
     const sign = r % 2 === 0 ? 1 : -1;
     const field = r % 4 < 2;
     addExtrapolated(net, c, prev, 0.5, sign, r % 3 === 0, 1.5e15);
-    nodeBudgets(nu, net, 7.5e18, sign, 1.5e-3, 2.5e-3, 0.5e-3, field);
-    extrapolatedBudgets(nu, c, prev, 0.5, sign, 1.5e15, 7.5e18, 1.5e-3, 2.5e-3, 0.5e-3, field);
+    // As a 2 × 2 cross-section, with and without rows and columns at the background.
+    const ref = 4.5e-3;
+    const limit = (r % 3 === 0 ? 1 : 1e-9) * ref;
+    nodeBudgets(nu, net, 7.5e18, sign, 1.5e-3, 2.5e-3, 0.5e-3, field, 2, ref, limit, rows, deviation);
+    uniformColumns(nu, 2, 2, ref, limit, rows, columns, deviation);
+    extrapolatedBudgets(nu, c, prev, 0.5, sign, 1.5e15, 7.5e18, 1.5e-3, 2.5e-3, 0.5e-3, field, 2, ref, limit, r % 2 === 0 ? 1e19 : -1, rows, deviation);
+    uniformColumns(nu, 2, 2, ref, limit, rows, columns, deviation);
   }
 }
 
@@ -565,46 +649,114 @@ function addExtrapolated(net: Float64Array, c: Float64Array, prev: Float64Array,
  * ν = (ν⁰ + ν¹·r + ν²·r²)·h at every node, r = n/ni for a donor (sign +1) or p/ni for an
  * acceptor (sign −1), from neutrality: with u = ±N/2ni, r = u + √(u² + 1) (see intrinsic.ts;
  * for u < 0 the reciprocal form 1/(√(u² + 1) − u) keeps the digits). h = 1 + |u|/√(u² + 1)
- * on the species whose type carries the net doping (u > 0), else 1.
+ * on the species whose type carries the net doping (u > 0), else 1. Row by row (nx nodes):
+ * a row whose ν is within `limit` of `ref` everywhere is set to exactly `ref` and marked in
+ * `rows`; `deviation` keeps each column's largest |ν − ref| for uniformColumns.
  */
-function nodeBudgets(nu: Float64Array, net: Float64Array, ni: number,
-                     sign: number, neutral: number, single: number, double: number, field: boolean): void {
+function nodeBudgets(nu: Float64Array, net: Float64Array, ni: number, sign: number, neutral: number, single: number, double: number,
+                     field: boolean, nx: number, ref: number, limit: number, rows: Uint8Array, deviation: Float64Array): void {
   const scale = sign / (2 * ni);
-  for (let k = 0; k < net.length; k++) {
-    const u = net[k] * scale;
-    const root = Math.sqrt(u * u + 1);
-    const r = u >= 0 ? u + root : 1 / (root - u);
-    const h = field && u > 0 ? 1 + u / root : 1;
-    nu[k] = (neutral + single * r + double * r * r) * h;
+  deviation.fill(0);
+  for (let j = 0, start = 0; start < net.length; j++, start += nx) {
+    let worst = 0;
+    for (let k = start, i = 0; i < nx; k++, i++) {
+      const u = net[k] * scale;
+      const root = Math.sqrt(u * u + 1);
+      const r = u >= 0 ? u + root : 1 / (root - u);
+      const h = field && u > 0 ? 1 + u / root : 1;
+      const v = (neutral + single * r + double * r * r) * h;
+      nu[k] = v;
+      const d = Math.abs(v - ref);
+      worst = Math.max(worst, d);
+      deviation[i] = Math.max(deviation[i], d);
+    }
+    rows[j] = markRow(nu, start, nx, worst, ref, limit);
   }
 }
 
+/** 1, with the row set to exactly `ref`, where its largest |ν − ref| is within `limit`; else 0 (a NaN too). */
+function markRow(nu: Float64Array, start: number, nx: number, worst: number, ref: number, limit: number): number {
+  if (!(worst <= limit)) return 0;
+  nu.fill(ref, start, start + nx);
+  return 1;
+}
+
 /**
- * addExtrapolated and nodeBudgets in one pass, for a single species: net = base +
- * sign·max(C + w·(C − C_prev), 0) at each node, ν from it as nodeBudgets does, C_prev = C,
- * and C's extremes in EXTREMES. The ν lines are nodeBudgets' own, written out again on
- * purpose: as a function of its own called from both loops, ν came back boxed whenever the
- * call was not inlined (1–7 scavenges a solve against 0).
+ * addExtrapolated and nodeBudgets in one pass over each row, for a single species: the
+ * extrapolation C + w·(C − C_prev) (at least 0), C_prev = C and C's extremes in EXTREMES;
+ * then ν = `ref`, evaluating nothing, on the nodes before the row's first value beyond
+ * `reach` (see backgroundReach) and after its last, and elsewhere ν with net = base +
+ * sign·value, as nodeBudgets makes it. The ν lines are nodeBudgets' own, written out again
+ * on purpose: as a function of its own called from both loops, ν came back boxed whenever
+ * the call was not inlined (1–7 scavenges a solve against 0).
  */
 function extrapolatedBudgets(nu: Float64Array, c: Float64Array, prev: Float64Array, w: number, sign: number, base: number, ni: number,
-                             neutral: number, single: number, double: number, field: boolean): void {
+                             neutral: number, single: number, double: number, field: boolean, nx: number, ref: number, limit: number,
+                             reach: number, rows: Uint8Array, deviation: Float64Array): void {
   const scale = sign / (2 * ni);
   let lowest = Infinity;
   let highest = -Infinity;
-  for (let k = 0; k < c.length; k++) {
-    const ck = c[k];
-    const mid = ck + w * (ck - prev[k]);
-    prev[k] = ck;
-    lowest = ck < lowest ? ck : lowest;
-    highest = ck > highest ? ck : highest;
-    const u = (base + sign * (mid > 0 ? mid : 0)) * scale;
-    const root = Math.sqrt(u * u + 1);
-    const r = u >= 0 ? u + root : 1 / (root - u);
-    const h = field && u > 0 ? 1 + u / root : 1;
-    nu[k] = (neutral + single * r + double * r * r) * h;
+  deviation.fill(0);
+  for (let j = 0, start = 0; start < c.length; j++, start += nx) {
+    const end = start + nx;
+    // the first and last node of the row beyond the reach (a NaN counts as beyond)
+    let first = end;
+    let last = start - 1;
+    for (let k = start; k < end; k++) {
+      const ck = c[k];
+      const mid = ck + w * (ck - prev[k]);
+      prev[k] = ck;
+      lowest = ck < lowest ? ck : lowest;
+      highest = ck > highest ? ck : highest;
+      const value = mid > 0 ? mid : 0;
+      nu[k] = value;
+      const beyond = !(value <= reach);
+      first = beyond && k < first ? k : first;
+      last = beyond ? k : last;
+    }
+    if (last < first) {
+      nu.fill(ref, start, end);
+      rows[j] = 1;
+      continue;
+    }
+    // Outside [first, last], ν is the background's within the limit: exactly `ref`.
+    nu.fill(ref, start, first);
+    nu.fill(ref, last + 1, end);
+    let worst = 0;
+    for (let k = first, i = first - start; k <= last; k++, i++) {
+      const u = (base + sign * nu[k]) * scale;
+      const root = Math.sqrt(u * u + 1);
+      const r = u >= 0 ? u + root : 1 / (root - u);
+      const h = field && u > 0 ? 1 + u / root : 1;
+      const v = (neutral + single * r + double * r * r) * h;
+      nu[k] = v;
+      const d = Math.abs(v - ref);
+      worst = Math.max(worst, d);
+      deviation[i] = Math.max(deviation[i], d);
+    }
+    rows[j] = markRow(nu, start, nx, worst, ref, limit);
   }
   EXTREMES[0] = lowest;
   EXTREMES[1] = highest;
+}
+
+/**
+ * After nodeBudgets or extrapolatedBudgets: marks each column whose ν is within `limit` of
+ * `ref` at every node and sets it to exactly `ref` (the marked rows already are). Returns
+ * the number of rows and columns marked.
+ */
+function uniformColumns(nu: Float64Array, nx: number, nz: number, ref: number, limit: number,
+                        rows: Uint8Array, columns: Uint8Array, deviation: Float64Array): number {
+  let count = 0;
+  for (let j = 0; j < nz; j++) count += rows[j];
+  for (let i = 0; i < nx; i++) {
+    const flat = deviation[i] <= limit ? 1 : 0;
+    columns[i] = flat;
+    count += flat;
+    if (flat === 0) continue;
+    for (let j = 0; j < nz; j++) if (rows[j] === 0) nu[j * nx + i] = ref;
+  }
+  return count;
 }
 
 /** Total open window width, µm: doses are reported per unit of open area. */
