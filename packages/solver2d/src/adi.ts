@@ -96,6 +96,8 @@ export class AdiStepper {
   /** per row (x sweep) and per column (z sweep): 1 where the line and both neighbours have one ν */
   private readonly flatRows: Uint8Array;
   private readonly flatColumns: Uint8Array;
+  /** the bottom rows' shared factor for the z sweep's columns (see variableBlockUp) */
+  private readonly bottom: BottomFactor;
 
   constructor(mesh: Mesh, mask: Mask) {
     primeKernels();
@@ -141,6 +143,7 @@ export class AdiStepper {
     this.cpBlock = new Float64Array(4 * n);
     this.flatRows = new Uint8Array(nz);
     this.flatColumns = new Uint8Array(nx);
+    this.bottom = { from: nz, up: new Float64Array(nz), inv: new Float64Array(nz), l: new Float64Array(nz) };
   }
 
   /** Atoms per unit length of cross-section, in cm^-3·µm², i.e. Σ C·Δx·Δz. */
@@ -215,18 +218,21 @@ export class AdiStepper {
     const columnHeld = held ? this.openColumnKind : this.sealedZKind;
     let flatRows: Uint8Array | null = null;
     let flatColumns: Uint8Array | null = null;
+    const { bottom } = this;
+    bottom.from = nz;
     if (uniform !== null) {
       // Shared factors for ν = uniform.nu; held lines keep their own path.
       this.prepare(implicit * uniform.nu, explicit * uniform.nu, false);
       flatRows = flatLines(uniform.rows, rowHeld, this.flatRows);
       flatColumns = flatLines(uniform.columns, columnHeld, this.flatColumns);
+      bottomFactor(flatRows, implicit * uniform.nu, az, cz, bottom);
     }
     // ν stays row-major for both sweeps: along a row (x sweep) consecutive, along a column
     // (z sweep) a row apart, where the four columns of a block read neighbouring values.
     variableSweep(c, this.star, nu, nx, 1, nx, nz, ax, cx, az, cz, implicit, explicit, this.cpBlock, rowHeld, this.open, false, surfaceValue,
-      flatRows, this.xSweep);
+      flatRows, this.xSweep, null);
     variableSweep(this.star, c, nu, 1, nx, nz, nx, az, cz, ax, cx, implicit, explicit, this.cpBlock, columnHeld, this.zSweep.heldAlong, true, surfaceValue,
-      flatColumns, this.zSweep);
+      flatColumns, this.zSweep, bottom.from < nz ? bottom : null);
     return held ? this.inflowVariable(c, nu, pr) : 0;
   }
 
@@ -456,13 +462,15 @@ function sweepLine(src: Float64Array, dst: Float64Array, s: SweepSetup, q: numbe
 function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number,
                        gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
                        beta: number, e: number, cp: Float64Array, kind: Uint8Array, heldAlong: Uint8Array,
-                       firstOnly: boolean, heldValue: number, flat: Uint8Array | null, shared: SweepSetup): void {
+                       firstOnly: boolean, heldValue: number, flat: Uint8Array | null, shared: SweepSetup, bottom: BottomFactor | null): void {
   let q = 0;
   for (; q + 4 <= m; q += 4) {
     const k0 = kind[q];
     const sameKind = k0 === kind[q + 1] && k0 === kind[q + 2] && k0 === kind[q + 3];
     if (flat !== null && flat[q] + flat[q + 1] + flat[q + 2] + flat[q + 3] === 4) {
       sweepBlock(src, dst, shared, q, shared.free, false, 0);
+    } else if (bottom !== null && sameKind && (k0 === 0 || firstOnly)) {
+      variableBlockUp(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, k0 === 1, heldValue, bottom);
     } else if (sameKind && (k0 === 0 || firstOnly)) {
       variableBlock(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, k0 === 1, heldValue);
     } else {
@@ -472,6 +480,38 @@ function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, n
     }
   }
   for (; q < m; q++) variableLine(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[q] === 1 ? heldAlong : null, heldValue);
+}
+
+/**
+ * The z sweep's bottom rows [from, n) where every row is flat (ν uniform on it and on both
+ * neighbours): there the column matrices are one matrix, whatever the column, and eliminated
+ * from the bottom up its pivots are shared. `up` holds the super-diagonal, `inv` the
+ * inverted pivots, `l` the sub-diagonal over the pivot (for the substitution back down).
+ */
+interface BottomFactor {
+  from: number;
+  up: Float64Array;
+  inv: Float64Array;
+  l: Float64Array;
+}
+
+/**
+ * Sets `out.from` to the start of the run of flat rows that ends at the bottom (n where
+ * fewer than four; row 0 never), and the shared factor of those rows for ν·β = `beta`.
+ */
+function bottomFactor(flatRows: Uint8Array, beta: number, gPrev: Float64Array, gNext: Float64Array, out: BottomFactor): void {
+  const n = flatRows.length;
+  let from = n;
+  while (from > 1 && flatRows[from - 1] === 1) from--;
+  out.from = n - from >= 4 ? from : n;
+  for (let k = n - 1; k >= out.from; k--) {
+    const lo = -beta * gPrev[k];
+    const up = -beta * gNext[k];
+    const inv = 1 / (1 - lo - up - (k < n - 1 ? up * out.l[k + 1] : 0));
+    out.up[k] = up;
+    out.inv[k] = inv;
+    out.l[k] = lo * inv;
+  }
 }
 
 /**
@@ -635,5 +675,133 @@ function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n
     y1 = dst[o + 1] - cp[c + 1] * y1; dst[o + 1] = y1;
     y2 = dst[o + 2] - cp[c + 2] * y2; dst[o + 2] = y2;
     y3 = dst[o + 3] - cp[c + 3] * y3; dst[o + 3] = y3;
+  }
+}
+
+/**
+ * `variableBlock` for four columns of the z sweep whose bottom rows are flat (see
+ * BottomFactor): the same equations, eliminated from the bottom up, so that the flat rows
+ * take the shared pivots and only the rows above them are factorised column by column; then
+ * substituted back from the top down. A held block is held at row 0 only.
+ */
+function variableBlockUp(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number, q: number,
+                         gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
+                         beta: number, e: number, cp: Float64Array, heldFirst: boolean, heldValue: number, bottom: BottomFactor): void {
+  const { from, up, inv, l } = bottom;
+  const b0 = q * n, b1 = b0 + n, b2 = b1 + n, b3 = b2 + n;
+  const bb = q > 0 ? b0 - n : b0;
+  const ba = q + 4 < m ? b3 + n : b3;
+  const u0 = q * nuLine, u1 = u0 + nuLine, u2 = u1 + nuLine, u3 = u2 + nuLine;
+  const ub = q > 0 ? u0 - nuLine : u0;
+  const ua = q + 4 < m ? u3 + nuLine : u3;
+  const half = 0.5 * e;
+  const wa0 = half * hPrev[q + 0], wb0 = half * hNext[q + 0];
+  const wa1 = half * hPrev[q + 1], wb1 = half * hNext[q + 1];
+  const wa2 = half * hPrev[q + 2], wb2 = half * hNext[q + 2];
+  const wa3 = half * hPrev[q + 3], wb3 = half * hNext[q + 3];
+  let y0 = 0, y1 = 0, y2 = 0, y3 = 0;
+  // The flat rows: every face there has the rows' ν, so the across fluxes are ν·(difference)
+  // with the ν of row `from` (one value on those rows).
+  {
+    const v = 2 * nu[u0 + from * nuAlong];
+    const ea0 = wa0 * v, eb0 = wb0 * v, ea1 = wa1 * v, eb1 = wb1 * v;
+    const ea2 = wa2 * v, eb2 = wb2 * v, ea3 = wa3 * v, eb3 = wb3 * v;
+    for (let k = n - 1; k >= from; k--) {
+      const uk = up[k];
+      const ik = inv[k];
+      const sb = src[bb + k], sa = src[ba + k];
+      const s0 = src[b0 + k], s1 = src[b1 + k], s2 = src[b2 + k], s3 = src[b3 + k];
+      y0 = (s0 + eb0 * (s1 - s0) - ea0 * (s0 - sb) - uk * y0) * ik;
+      y1 = (s1 + eb1 * (s2 - s1) - ea1 * (s1 - s0) - uk * y1) * ik;
+      y2 = (s2 + eb2 * (s3 - s2) - ea2 * (s2 - s1) - uk * y2) * ik;
+      y3 = (s3 + eb3 * (sa - s3) - ea3 * (s3 - s2) - uk * y3) * ik;
+      const o = k * m + q;
+      dst[o] = y0; dst[o + 1] = y1; dst[o + 2] = y2; dst[o + 3] = y3;
+    }
+  }
+  // The rows above, from `from` − 1 up to row 0 (row 1 where row 0 is held): ν at k + 1 and
+  // at k carried up from one row to the next.
+  let p0 = l[from], p1 = p0, p2 = p0, p3 = p0;
+  const top = heldFirst ? 1 : 0;
+  const kf = from * nuAlong;
+  let x0 = nu[u0 + kf], n0 = nu[u0 + kf - nuAlong];
+  let x1 = nu[u1 + kf], n1 = nu[u1 + kf - nuAlong];
+  let x2 = nu[u2 + kf], n2 = nu[u2 + kf - nuAlong];
+  let x3 = nu[u3 + kf], n3 = nu[u3 + kf - nuAlong];
+  for (let k = from - 1; k >= top; k--) {
+    const ka = k * nuAlong;
+    const kp = k > 0 ? ka - nuAlong : ka;
+    const gp = 0.5 * beta * gPrev[k];
+    const gn = 0.5 * beta * gNext[k];
+    const sb = src[bb + k], sa = src[ba + k];
+    const s0 = src[b0 + k], s1 = src[b1 + k], s2 = src[b2 + k], s3 = src[b3 + k];
+    // ν̄·(difference) across the faces below line 0, between the lines, above line 3
+    const f0 = (nu[ub + ka] + n0) * (s0 - sb);
+    const f1 = (n0 + n1) * (s1 - s0);
+    const f2 = (n1 + n2) * (s2 - s1);
+    const f3 = (n2 + n3) * (s3 - s2);
+    const f4 = (n3 + nu[ua + ka]) * (sa - s3);
+    const v0 = nu[u0 + kp];
+    const lo0 = -gp * (v0 + n0);
+    const up0 = -gn * (n0 + x0);
+    const r0 = s0 + wb0 * f1 - wa0 * f0;
+    x0 = n0;
+    n0 = v0;
+    const v1 = nu[u1 + kp];
+    const lo1 = -gp * (v1 + n1);
+    const up1 = -gn * (n1 + x1);
+    const r1 = s1 + wb1 * f2 - wa1 * f1;
+    x1 = n1;
+    n1 = v1;
+    const v2 = nu[u2 + kp];
+    const lo2 = -gp * (v2 + n2);
+    const up2 = -gn * (n2 + x2);
+    const r2 = s2 + wb2 * f3 - wa2 * f2;
+    x2 = n2;
+    n2 = v2;
+    const v3 = nu[u3 + kp];
+    const lo3 = -gp * (v3 + n3);
+    const up3 = -gn * (n3 + x3);
+    const r3 = s3 + wb3 * f4 - wa3 * f3;
+    x3 = n3;
+    n3 = v3;
+    const i0 = 1 / (1 - lo0 - up0 - up0 * p0);
+    p0 = lo0 * i0;
+    y0 = (r0 - up0 * y0) * i0;
+    const i1 = 1 / (1 - lo1 - up1 - up1 * p1);
+    p1 = lo1 * i1;
+    y1 = (r1 - up1 * y1) * i1;
+    const i2 = 1 / (1 - lo2 - up2 - up2 * p2);
+    p2 = lo2 * i2;
+    y2 = (r2 - up2 * y2) * i2;
+    const i3 = 1 / (1 - lo3 - up3 - up3 * p3);
+    p3 = lo3 * i3;
+    y3 = (r3 - up3 * y3) * i3;
+    const c = 4 * k;
+    cp[c] = p0; cp[c + 1] = p1; cp[c + 2] = p2; cp[c + 3] = p3;
+    const o = k * m + q;
+    dst[o] = y0; dst[o + 1] = y1; dst[o + 2] = y2; dst[o + 3] = y3;
+  }
+  if (heldFirst) {
+    // Row 0 is held: an identity row, its value known; row 1 keeps its coupling to it.
+    dst[q] = dst[q + 1] = dst[q + 2] = dst[q + 3] = heldValue;
+  }
+  // Back down: C_k = y_k − l_k·C_{k−1}, with the columns' own l above `from` and the shared one below.
+  y0 = dst[q]; y1 = dst[q + 1]; y2 = dst[q + 2]; y3 = dst[q + 3];
+  for (let k = 1; k < from; k++) {
+    const c = 4 * k;
+    const o = k * m + q;
+    y0 = dst[o + 0] - cp[c + 0] * y0; dst[o + 0] = y0;
+    y1 = dst[o + 1] - cp[c + 1] * y1; dst[o + 1] = y1;
+    y2 = dst[o + 2] - cp[c + 2] * y2; dst[o + 2] = y2;
+    y3 = dst[o + 3] - cp[c + 3] * y3; dst[o + 3] = y3;
+  }
+  for (let k = from; k < n; k++) {
+    const lk = l[k];
+    const o = k * m + q;
+    y0 = dst[o + 0] - lk * y0; dst[o + 0] = y0;
+    y1 = dst[o + 1] - lk * y1; dst[o + 1] = y1;
+    y2 = dst[o + 2] - lk * y2; dst[o + 2] = y2;
+    y3 = dst[o + 3] - lk * y3; dst[o + 3] = y3;
   }
 }
