@@ -699,9 +699,7 @@ function extrapolatedBudgets(nu: Float64Array, c: Float64Array, prev: Float64Arr
   deviation.fill(0);
   for (let j = 0, start = 0; start < c.length; j++, start += nx) {
     const end = start + nx;
-    // the first and last node of the row beyond the reach (a NaN counts as beyond)
-    let first = end;
-    let last = start - 1;
+    let top = 0;
     for (let k = start; k < end; k++) {
       const ck = c[k];
       const mid = ck + w * (ck - prev[k]);
@@ -710,15 +708,19 @@ function extrapolatedBudgets(nu: Float64Array, c: Float64Array, prev: Float64Arr
       highest = ck > highest ? ck : highest;
       const value = mid > 0 ? mid : 0;
       nu[k] = value;
-      const beyond = !(value <= reach);
-      first = beyond && k < first ? k : first;
-      last = beyond ? k : last;
+      top = Math.max(top, value);
     }
-    if (last < first) {
+    if (top <= reach) {
       nu.fill(ref, start, end);
       rows[j] = 1;
       continue;
     }
+    // The first and last node beyond the reach: there is one, since the top is (a NaN, which
+    // Math.max carries to the top, stops both scans too).
+    let first = start;
+    while (nu[first] <= reach) first++;
+    let last = end - 1;
+    while (nu[last] <= reach) last--;
     // Outside [first, last], ν is the background's within the limit: exactly `ref`.
     nu.fill(ref, start, first);
     nu.fill(ref, last + 1, end);
