@@ -96,8 +96,9 @@ export class AdiStepper {
   /** per row (x sweep) and per column (z sweep): 1 where the line and both neighbours have one ν */
   private readonly flatRows: Uint8Array;
   private readonly flatColumns: Uint8Array;
-  /** the bottom rows' shared factor for the z sweep's columns (see variableBlockUp) */
-  private readonly bottom: BottomFactor;
+  /** each sweep's flat runs at the ends of its lines (see FlatEnds) */
+  private readonly xEnds: FlatEnds;
+  private readonly zEnds: FlatEnds;
 
   constructor(mesh: Mesh, mask: Mask) {
     primeKernels();
@@ -143,7 +144,8 @@ export class AdiStepper {
     this.cpBlock = new Float64Array(4 * n);
     this.flatRows = new Uint8Array(nz);
     this.flatColumns = new Uint8Array(nx);
-    this.bottom = { from: nz, up: new Float64Array(nz), inv: new Float64Array(nz), l: new Float64Array(nz) };
+    this.xEnds = { lead: 0, left: this.xSweep.free, right: backwardFactor(nx) };
+    this.zEnds = { lead: 0, left: this.zSweep.free, right: backwardFactor(nz) };
   }
 
   /** Atoms per unit length of cross-section, in cm^-3·µm², i.e. Σ C·Δx·Δz. */
@@ -218,21 +220,26 @@ export class AdiStepper {
     const columnHeld = held ? this.openColumnKind : this.sealedZKind;
     let flatRows: Uint8Array | null = null;
     let flatColumns: Uint8Array | null = null;
-    const { bottom } = this;
-    bottom.from = nz;
+    const { xEnds, zEnds } = this;
+    xEnds.lead = 0;
+    xEnds.right.from = nx;
+    zEnds.right.from = nz;
     if (uniform !== null) {
       // Shared factors for ν = uniform.nu; held lines keep their own path.
       this.prepare(implicit * uniform.nu, explicit * uniform.nu, false);
       flatRows = flatLines(uniform.rows, rowHeld, this.flatRows);
       flatColumns = flatLines(uniform.columns, columnHeld, this.flatColumns);
-      bottomFactor(flatRows, implicit * uniform.nu, az, cz, bottom);
+      // Rows: flat columns at both ends; columns: flat rows at the bottom (row 0 takes the dopant).
+      trailingFactor(flatColumns, implicit * uniform.nu, ax, cx, xEnds.right);
+      xEnds.lead = leadingRun(flatColumns, xEnds.right.from);
+      trailingFactor(flatRows, implicit * uniform.nu, az, cz, zEnds.right);
     }
     // ν stays row-major for both sweeps: along a row (x sweep) consecutive, along a column
     // (z sweep) a row apart, where the four columns of a block read neighbouring values.
     variableSweep(c, this.star, nu, nx, 1, nx, nz, ax, cx, az, cz, implicit, explicit, this.cpBlock, rowHeld, this.open, false, surfaceValue,
-      flatRows, this.xSweep, null);
+      flatRows, this.xSweep, xEnds);
     variableSweep(this.star, c, nu, 1, nx, nz, nx, az, cz, ax, cx, implicit, explicit, this.cpBlock, columnHeld, this.zSweep.heldAlong, true, surfaceValue,
-      flatColumns, this.zSweep, bottom.from < nz ? bottom : null);
+      flatColumns, this.zSweep, zEnds);
     return held ? this.inflowVariable(c, nu, pr) : 0;
   }
 
@@ -344,10 +351,11 @@ function primeKernels(): void {
   const c = new Float64Array(mesh.nx * mesh.nz);
   const nu = new Float64Array(mesh.nx * mesh.nz);
   for (let k = 0; k < nu.length; k++) nu[k] = 1.5e-3 * (1 + (k % 3) * 0.25);
-  // Rows 3–9 and columns 7–12 at one ν: a block of four flat lines in each sweep, and lines
-  // that are uniform but not flat.
+  // Rows 3–9 and columns 0–4 and 7–12 at one ν: flat blocks in both sweeps, flat runs at
+  // both ends of the rows and at the bottom of the columns, lines uniform but not flat.
   const uniform: UniformLines = { nu: 1.5e-3, rows: new Uint8Array(mesh.nz), columns: new Uint8Array(mesh.nx) };
   uniform.rows.fill(1, 3);
+  uniform.columns.fill(1, 0, 5);
   uniform.columns.fill(1, 7);
   for (let j = 0; j < mesh.nz; j++) {
     for (let i = 0; i < mesh.nx; i++) if (uniform.rows[j] === 1 || uniform.columns[i] === 1) nu[j * mesh.nx + i] = uniform.nu;
@@ -462,17 +470,15 @@ function sweepLine(src: Float64Array, dst: Float64Array, s: SweepSetup, q: numbe
 function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number,
                        gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
                        beta: number, e: number, cp: Float64Array, kind: Uint8Array, heldAlong: Uint8Array,
-                       firstOnly: boolean, heldValue: number, flat: Uint8Array | null, shared: SweepSetup, bottom: BottomFactor | null): void {
+                       firstOnly: boolean, heldValue: number, flat: Uint8Array | null, shared: SweepSetup, ends: FlatEnds): void {
   let q = 0;
   for (; q + 4 <= m; q += 4) {
     const k0 = kind[q];
     const sameKind = k0 === kind[q + 1] && k0 === kind[q + 2] && k0 === kind[q + 3];
     if (flat !== null && flat[q] + flat[q + 1] + flat[q + 2] + flat[q + 3] === 4) {
       sweepBlock(src, dst, shared, q, shared.free, false, 0);
-    } else if (bottom !== null && sameKind && (k0 === 0 || firstOnly)) {
-      variableBlockUp(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, k0 === 1, heldValue, bottom);
     } else if (sameKind && (k0 === 0 || firstOnly)) {
-      variableBlock(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, k0 === 1, heldValue);
+      variableBlock(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, k0 === 1, heldValue, ends);
     } else {
       for (let r = q; r < q + 4; r++) {
         variableLine(src, dst, nu, nuLine, nuAlong, n, m, r, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[r] === 1 ? heldAlong : null, heldValue);
@@ -483,26 +489,42 @@ function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, n
 }
 
 /**
- * The z sweep's bottom rows [from, n) where every row is flat (ν uniform on it and on both
- * neighbours): there the column matrices are one matrix, whatever the column, and eliminated
- * from the bottom up its pivots are shared. `up` holds the super-diagonal, `inv` the
- * inverted pivots, `l` the sub-diagonal over the pivot (for the substitution back down).
+ * The flat runs at the two ends of a sweep's lines (positions where ν is uniform across every
+ * line, with their neighbours): there the line matrices are one matrix, whatever the line.
+ * `lead` positions from the start take the shared factor eliminated forward (`left`, the
+ * constant-D factor of the sweep); positions from `right.from` to the end take the shared
+ * factor eliminated backward (`right`); only the positions between are factorised line by
+ * line. No ends: lead 0 and right.from = n.
  */
-interface BottomFactor {
+interface FlatEnds {
+  lead: number;
+  left: LineFactor;
+  right: BackwardFactor;
+}
+
+/**
+ * A backward (end-to-start) elimination of the positions [from, n) of a line with uniform ν:
+ * `up` the super-diagonal, `inv` the inverted pivots, `l` the sub-diagonal over the pivot.
+ */
+interface BackwardFactor {
   from: number;
   up: Float64Array;
   inv: Float64Array;
   l: Float64Array;
 }
 
+function backwardFactor(n: number): BackwardFactor {
+  return { from: n, up: new Float64Array(n), inv: new Float64Array(n), l: new Float64Array(n) };
+}
+
 /**
- * Sets `out.from` to the start of the run of flat rows that ends at the bottom (n where
- * fewer than four; row 0 never), and the shared factor of those rows for ν·β = `beta`.
+ * Sets `out.from` to the start of the run of flat positions that ends the line (n where fewer
+ * than four; position 0 never), and their backward factor for ν·β = `beta`.
  */
-function bottomFactor(flatRows: Uint8Array, beta: number, gPrev: Float64Array, gNext: Float64Array, out: BottomFactor): void {
-  const n = flatRows.length;
+function trailingFactor(flat: Uint8Array, beta: number, gPrev: Float64Array, gNext: Float64Array, out: BackwardFactor): void {
+  const n = flat.length;
   let from = n;
-  while (from > 1 && flatRows[from - 1] === 1) from--;
+  while (from > 1 && flat[from - 1] === 1) from--;
   out.from = n - from >= 4 ? from : n;
   for (let k = n - 1; k >= out.from; k--) {
     const lo = -beta * gPrev[k];
@@ -512,6 +534,13 @@ function bottomFactor(flatRows: Uint8Array, beta: number, gPrev: Float64Array, g
     out.inv[k] = inv;
     out.l[k] = lo * inv;
   }
+}
+
+/** The number of flat positions that start the line, where at least four and short of its end. */
+function leadingRun(flat: Uint8Array, end: number): number {
+  let lead = 0;
+  while (lead < end - 1 && flat[lead] === 1) lead++;
+  return lead >= 4 ? lead : 0;
 }
 
 /**
@@ -581,11 +610,16 @@ function variableLine(src: Float64Array, dst: Float64Array, nu: Float64Array, nu
  * interleaved (the division of each Thomas step would otherwise stall the next). Same
  * equations as `variableLine`; a held block is held at position 0 only. The fluxes
  * across the five faces between and around the four lines are computed once and shared,
- * and ν along each line is carried from one position to the next.
+ * and ν along each line is carried from one position to the next. Flat runs at the ends
+ * (see FlatEnds) take the shared factors: forward over the leading run, line by line over
+ * the middle, backward over the trailing run, the two eliminations joined at the last middle
+ * position, then substituted back out from there.
  */
 function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number, q: number,
                        gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
-                       beta: number, e: number, cp: Float64Array, heldFirst: boolean, heldValue: number): void {
+                       beta: number, e: number, cp: Float64Array, heldFirst: boolean, heldValue: number, ends: FlatEnds): void {
+  const { lead, left, right } = ends;
+  const end = right.from;
   const b0 = q * n, b1 = b0 + n, b2 = b1 + n, b3 = b2 + n;
   const bb = q > 0 ? b0 - n : b0;
   const ba = q + 4 < m ? b3 + n : b3;
@@ -597,13 +631,31 @@ function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n
   const wa1 = half * hPrev[q + 1], wb1 = half * hNext[q + 1];
   const wa2 = half * hPrev[q + 2], wb2 = half * hNext[q + 2];
   const wa3 = half * hPrev[q + 3], wb3 = half * hNext[q + 3];
+  // On the flat runs every face has their one ν: the across fluxes are 2ν·(difference)·w.
+  const flat = 2 * nu[u0 + (lead > 0 ? 0 : end < n ? end * nuAlong : 0)];
+  const ea0 = wa0 * flat, eb0 = wb0 * flat, ea1 = wa1 * flat, eb1 = wb1 * flat;
+  const ea2 = wa2 * flat, eb2 = wb2 * flat, ea3 = wa3 * flat, eb3 = wb3 * flat;
   let y0 = 0, y1 = 0, y2 = 0, y3 = 0;
   let p0 = 0, p1 = 0, p2 = 0, p3 = 0;
-  let v0 = nu[u0], n0 = v0;
-  let v1 = nu[u1], n1 = v1;
-  let v2 = nu[u2], n2 = v2;
-  let v3 = nu[u3], n3 = v3;
-  let first = 0;
+  for (let k = 0; k < lead; k++) {
+    const lk = left.l[k];
+    const ik = left.inv[k];
+    const sb = src[bb + k], sa = src[ba + k];
+    const s0 = src[b0 + k], s1 = src[b1 + k], s2 = src[b2 + k], s3 = src[b3 + k];
+    y0 = (s0 + eb0 * (s1 - s0) - ea0 * (s0 - sb) - lk * y0) * ik;
+    y1 = (s1 + eb1 * (s2 - s1) - ea1 * (s1 - s0) - lk * y1) * ik;
+    y2 = (s2 + eb2 * (s3 - s2) - ea2 * (s2 - s1) - lk * y2) * ik;
+    y3 = (s3 + eb3 * (sa - s3) - ea3 * (s3 - s2) - lk * y3) * ik;
+    const o = k * m + q;
+    dst[o] = y0; dst[o + 1] = y1; dst[o + 2] = y2; dst[o + 3] = y3;
+  }
+  if (lead > 0) p0 = p1 = p2 = p3 = left.cp[lead - 1];
+  const before = lead > 0 ? (lead - 1) * nuAlong : 0;
+  let v0 = nu[u0 + before], n0 = nu[u0 + lead * nuAlong];
+  let v1 = nu[u1 + before], n1 = nu[u1 + lead * nuAlong];
+  let v2 = nu[u2 + before], n2 = nu[u2 + lead * nuAlong];
+  let v3 = nu[u3 + before], n3 = nu[u3 + lead * nuAlong];
+  let first = lead;
   if (heldFirst) {
     // Position 0 is held: an identity row. Peeled off here, so that the loop carries no
     // branch (a branch in it, taken once a call, made the loop box its doubles: half the speed).
@@ -614,7 +666,7 @@ function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n
     n0 = nu[u0 + next]; n1 = nu[u1 + next]; n2 = nu[u2 + next]; n3 = nu[u3 + next];
     first = 1;
   }
-  for (let k = first; k < n; k++) {
+  for (let k = first; k < end; k++) {
     const ka = k * nuAlong;
     const kn = k < n - 1 ? ka + nuAlong : ka;
     const gp = 0.5 * beta * gPrev[k];
@@ -668,127 +720,41 @@ function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, n
     const o = k * m + q;
     dst[o] = y0; dst[o + 1] = y1; dst[o + 2] = y2; dst[o + 3] = y3;
   }
-  for (let k = n - 2; k >= 0; k--) {
-    const c = 4 * k;
-    const o = k * m + q;
-    y0 = dst[o + 0] - cp[c + 0] * y0; dst[o + 0] = y0;
-    y1 = dst[o + 1] - cp[c + 1] * y1; dst[o + 1] = y1;
-    y2 = dst[o + 2] - cp[c + 2] * y2; dst[o + 2] = y2;
-    y3 = dst[o + 3] - cp[c + 3] * y3; dst[o + 3] = y3;
-  }
-}
-
-/**
- * `variableBlock` for four columns of the z sweep whose bottom rows are flat (see
- * BottomFactor): the same equations, eliminated from the bottom up, so that the flat rows
- * take the shared pivots and only the rows above them are factorised column by column; then
- * substituted back from the top down. A held block is held at row 0 only.
- */
-function variableBlockUp(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number, q: number,
-                         gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
-                         beta: number, e: number, cp: Float64Array, heldFirst: boolean, heldValue: number, bottom: BottomFactor): void {
-  const { from, up, inv, l } = bottom;
-  const b0 = q * n, b1 = b0 + n, b2 = b1 + n, b3 = b2 + n;
-  const bb = q > 0 ? b0 - n : b0;
-  const ba = q + 4 < m ? b3 + n : b3;
-  const u0 = q * nuLine, u1 = u0 + nuLine, u2 = u1 + nuLine, u3 = u2 + nuLine;
-  const ub = q > 0 ? u0 - nuLine : u0;
-  const ua = q + 4 < m ? u3 + nuLine : u3;
-  const half = 0.5 * e;
-  const wa0 = half * hPrev[q + 0], wb0 = half * hNext[q + 0];
-  const wa1 = half * hPrev[q + 1], wb1 = half * hNext[q + 1];
-  const wa2 = half * hPrev[q + 2], wb2 = half * hNext[q + 2];
-  const wa3 = half * hPrev[q + 3], wb3 = half * hNext[q + 3];
-  let y0 = 0, y1 = 0, y2 = 0, y3 = 0;
-  // The flat rows: every face there has the rows' ν, so the across fluxes are ν·(difference)
-  // with the ν of row `from` (one value on those rows).
-  {
-    const v = 2 * nu[u0 + from * nuAlong];
-    const ea0 = wa0 * v, eb0 = wb0 * v, ea1 = wa1 * v, eb1 = wb1 * v;
-    const ea2 = wa2 * v, eb2 = wb2 * v, ea3 = wa3 * v, eb3 = wb3 * v;
-    for (let k = n - 1; k >= from; k--) {
-      const uk = up[k];
-      const ik = inv[k];
+  if (end < n) {
+    // The trailing run, backward from the last position.
+    let z0 = 0, z1 = 0, z2 = 0, z3 = 0;
+    for (let k = n - 1; k >= end; k--) {
+      const uk = right.up[k];
+      const ik = right.inv[k];
       const sb = src[bb + k], sa = src[ba + k];
       const s0 = src[b0 + k], s1 = src[b1 + k], s2 = src[b2 + k], s3 = src[b3 + k];
-      y0 = (s0 + eb0 * (s1 - s0) - ea0 * (s0 - sb) - uk * y0) * ik;
-      y1 = (s1 + eb1 * (s2 - s1) - ea1 * (s1 - s0) - uk * y1) * ik;
-      y2 = (s2 + eb2 * (s3 - s2) - ea2 * (s2 - s1) - uk * y2) * ik;
-      y3 = (s3 + eb3 * (sa - s3) - ea3 * (s3 - s2) - uk * y3) * ik;
+      z0 = (s0 + eb0 * (s1 - s0) - ea0 * (s0 - sb) - uk * z0) * ik;
+      z1 = (s1 + eb1 * (s2 - s1) - ea1 * (s1 - s0) - uk * z1) * ik;
+      z2 = (s2 + eb2 * (s3 - s2) - ea2 * (s2 - s1) - uk * z2) * ik;
+      z3 = (s3 + eb3 * (sa - s3) - ea3 * (s3 - s2) - uk * z3) * ik;
       const o = k * m + q;
-      dst[o] = y0; dst[o + 1] = y1; dst[o + 2] = y2; dst[o + 3] = y3;
+      dst[o] = z0; dst[o + 1] = z1; dst[o + 2] = z2; dst[o + 3] = z3;
+    }
+    // Joined at end − 1: C = y − p·C_end there and C_end = z − l·C there.
+    const le = right.l[end];
+    y0 = (y0 - p0 * z0) / (1 - p0 * le);
+    y1 = (y1 - p1 * z1) / (1 - p1 * le);
+    y2 = (y2 - p2 * z2) / (1 - p2 * le);
+    y3 = (y3 - p3 * z3) / (1 - p3 * le);
+    const oj = (end - 1) * m + q;
+    dst[oj] = y0; dst[oj + 1] = y1; dst[oj + 2] = y2; dst[oj + 3] = y3;
+    let w0 = y0, w1 = y1, w2 = y2, w3 = y3;
+    for (let k = end; k < n; k++) {
+      const lk = right.l[k];
+      const o = k * m + q;
+      w0 = dst[o + 0] - lk * w0; dst[o + 0] = w0;
+      w1 = dst[o + 1] - lk * w1; dst[o + 1] = w1;
+      w2 = dst[o + 2] - lk * w2; dst[o + 2] = w2;
+      w3 = dst[o + 3] - lk * w3; dst[o + 3] = w3;
     }
   }
-  // The rows above, from `from` − 1 up to row 0 (row 1 where row 0 is held): ν at k + 1 and
-  // at k carried up from one row to the next.
-  let p0 = l[from], p1 = p0, p2 = p0, p3 = p0;
-  const top = heldFirst ? 1 : 0;
-  const kf = from * nuAlong;
-  let x0 = nu[u0 + kf], n0 = nu[u0 + kf - nuAlong];
-  let x1 = nu[u1 + kf], n1 = nu[u1 + kf - nuAlong];
-  let x2 = nu[u2 + kf], n2 = nu[u2 + kf - nuAlong];
-  let x3 = nu[u3 + kf], n3 = nu[u3 + kf - nuAlong];
-  for (let k = from - 1; k >= top; k--) {
-    const ka = k * nuAlong;
-    const kp = k > 0 ? ka - nuAlong : ka;
-    const gp = 0.5 * beta * gPrev[k];
-    const gn = 0.5 * beta * gNext[k];
-    const sb = src[bb + k], sa = src[ba + k];
-    const s0 = src[b0 + k], s1 = src[b1 + k], s2 = src[b2 + k], s3 = src[b3 + k];
-    // ν̄·(difference) across the faces below line 0, between the lines, above line 3
-    const f0 = (nu[ub + ka] + n0) * (s0 - sb);
-    const f1 = (n0 + n1) * (s1 - s0);
-    const f2 = (n1 + n2) * (s2 - s1);
-    const f3 = (n2 + n3) * (s3 - s2);
-    const f4 = (n3 + nu[ua + ka]) * (sa - s3);
-    const v0 = nu[u0 + kp];
-    const lo0 = -gp * (v0 + n0);
-    const up0 = -gn * (n0 + x0);
-    const r0 = s0 + wb0 * f1 - wa0 * f0;
-    x0 = n0;
-    n0 = v0;
-    const v1 = nu[u1 + kp];
-    const lo1 = -gp * (v1 + n1);
-    const up1 = -gn * (n1 + x1);
-    const r1 = s1 + wb1 * f2 - wa1 * f1;
-    x1 = n1;
-    n1 = v1;
-    const v2 = nu[u2 + kp];
-    const lo2 = -gp * (v2 + n2);
-    const up2 = -gn * (n2 + x2);
-    const r2 = s2 + wb2 * f3 - wa2 * f2;
-    x2 = n2;
-    n2 = v2;
-    const v3 = nu[u3 + kp];
-    const lo3 = -gp * (v3 + n3);
-    const up3 = -gn * (n3 + x3);
-    const r3 = s3 + wb3 * f4 - wa3 * f3;
-    x3 = n3;
-    n3 = v3;
-    const i0 = 1 / (1 - lo0 - up0 - up0 * p0);
-    p0 = lo0 * i0;
-    y0 = (r0 - up0 * y0) * i0;
-    const i1 = 1 / (1 - lo1 - up1 - up1 * p1);
-    p1 = lo1 * i1;
-    y1 = (r1 - up1 * y1) * i1;
-    const i2 = 1 / (1 - lo2 - up2 - up2 * p2);
-    p2 = lo2 * i2;
-    y2 = (r2 - up2 * y2) * i2;
-    const i3 = 1 / (1 - lo3 - up3 - up3 * p3);
-    p3 = lo3 * i3;
-    y3 = (r3 - up3 * y3) * i3;
-    const c = 4 * k;
-    cp[c] = p0; cp[c + 1] = p1; cp[c + 2] = p2; cp[c + 3] = p3;
-    const o = k * m + q;
-    dst[o] = y0; dst[o + 1] = y1; dst[o + 2] = y2; dst[o + 3] = y3;
-  }
-  if (heldFirst) {
-    // Row 0 is held: an identity row, its value known; row 1 keeps its coupling to it.
-    dst[q] = dst[q + 1] = dst[q + 2] = dst[q + 3] = heldValue;
-  }
-  // Back down: C_k = y_k − l_k·C_{k−1}, with the columns' own l above `from` and the shared one below.
-  y0 = dst[q]; y1 = dst[q + 1]; y2 = dst[q + 2]; y3 = dst[q + 3];
-  for (let k = 1; k < from; k++) {
+  // Back to the start: C_k = y_k − p_k·C_{k+1}, with each line's p over the middle and the shared one over the lead.
+  for (let k = end - 2; k >= lead; k--) {
     const c = 4 * k;
     const o = k * m + q;
     y0 = dst[o + 0] - cp[c + 0] * y0; dst[o + 0] = y0;
@@ -796,12 +762,12 @@ function variableBlockUp(src: Float64Array, dst: Float64Array, nu: Float64Array,
     y2 = dst[o + 2] - cp[c + 2] * y2; dst[o + 2] = y2;
     y3 = dst[o + 3] - cp[c + 3] * y3; dst[o + 3] = y3;
   }
-  for (let k = from; k < n; k++) {
-    const lk = l[k];
+  for (let k = Math.min(end - 2, lead - 1); k >= 0; k--) {
+    const pk = left.cp[k];
     const o = k * m + q;
-    y0 = dst[o + 0] - lk * y0; dst[o + 0] = y0;
-    y1 = dst[o + 1] - lk * y1; dst[o + 1] = y1;
-    y2 = dst[o + 2] - lk * y2; dst[o + 2] = y2;
-    y3 = dst[o + 3] - lk * y3; dst[o + 3] = y3;
+    y0 = dst[o + 0] - pk * y0; dst[o + 0] = y0;
+    y1 = dst[o + 1] - pk * y1; dst[o + 1] = y1;
+    y2 = dst[o + 2] - pk * y2; dst[o + 2] = y2;
+    y3 = dst[o + 3] - pk * y3; dst[o + 3] = y3;
   }
 }
