@@ -101,7 +101,7 @@ export function overStep(step: StepPlan, f: (temperatureC: number) => number, t0
 export interface PlanLimits {
   /** largest number of mesh points accepted (memory ∝ points) */
   maxMeshPoints: number;
-  /** largest mesh points × time steps accepted (solve time ∝ it: 15–60 ns each on one core here) */
+  /** largest mesh points × time steps accepted (solve time ∝ it: 5–25 ns each, and species, on one core here) */
   maxPointSteps: number;
 }
 

@@ -334,8 +334,10 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   // Check the work before allocating any field.
   const work = total * cells;
   if (work > plan.limits.maxPointSteps) {
-    // About 30 ns a point-step on one core of the 2-core machine this was measured on.
-    const seconds = work * 3e-8;
+    // A point-step of each species, on one core of the 2-core machine this was measured on at
+    // its slower speed: about 9 ns with constant D, 25 ns with the charged-defect model.
+    const perPointStep = species.reduce((sum, s) => sum + (s.model === 'charged-defect' ? 25e-9 : 9e-9), 0);
+    const seconds = work * perPointStep;
     const time = seconds < 90 ? `${Math.ceil(seconds)} s` : `${Math.ceil(seconds / 60)} min`;
     const sci = (v: number) => v.toExponential(2).replace('e+', 'e');
     throw new RecipeError('numerics', `would take ${total} time steps on ${cells} mesh points (${sci(work)} point-steps, ` +
