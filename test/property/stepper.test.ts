@@ -1,14 +1,15 @@
 import fc from 'fast-check';
 import { describe, it } from 'vitest';
-import { AdiStepper, type Scheme } from '../../packages/solver2d/src/adi.ts';
+import { AdiStepper, type Scheme, type UniformLines } from '../../packages/solver2d/src/adi.ts';
 import { buildMask, type Mask } from '../../packages/solver2d/src/mask.ts';
 import { buildMesh, type Mesh } from '../../packages/solver2d/src/mesh.ts';
 import { check, logUniform, printCountsAfterAll, uniform } from './support.ts';
 
 /**
  * Invariants of one ADI time step, on generated meshes and fields: the finite-volume scheme
- * conserves what it holds, keeps a mirror-symmetric problem symmetric, and carries a NaN or
- * Inf from anywhere in the field to the bottom row, which is all simulate.ts's guard looks at.
+ * conserves what it holds, keeps a mirror-symmetric problem symmetric, carries a NaN or Inf
+ * from anywhere in the field to the bottom row, which is all simulate.ts's guard looks at, and
+ * gives the same step where lines of uniform ν take the shared factors.
  * A step costs microseconds here, so each property gets 10,000 cases.
  */
 printCountsAfterAll('stepper.test.ts');
@@ -163,22 +164,78 @@ describe('one ADI step on generated meshes and fields', () => {
     }, 10_000);
   });
 
+  it('lines of uniform ν solved with the shared factors give the line-by-line step (to 64ε·(1 + 16·mesh number)) and conserve', () => {
+    // simulate.ts marks the rows and columns where ν is the background's; the stepper then
+    // solves flat lines, and flat runs at the ends of the others, with shared factors. The
+    // equations are the same, eliminated in another order, so the results agree to the line
+    // solves' forward error (see the symmetry bound above). Marked: the rows from a drawn
+    // depth down, runs of columns at both walls, and a few columns drawn anywhere.
+    const marks = fc.record({ fromRow: uniform(0, 1), leftRun: uniform(0, 0.5), rightRun: uniform(0, 0.5), scattered: fc.array(uniform(0, 1), { maxLength: 3 }) });
+    check('stepper: uniform lines', fc.tuple(problems, marks, fc.integer(), fc.constantFrom(...SCHEMES), fc.boolean(), logUniform(1e-3, 1e3)),
+      ([{ mesh, stepper }, mark, seed, scheme, held, meshNumber]) => {
+        const { nx, nz } = mesh;
+        const a = field(mesh, seed);
+        if (held) stepper.holdSurface(a, 1e20);
+        const b = a.slice();
+        const background = meshNumber * finest(mesh) ** 2;
+        const nu = nodeNu(background, a);
+        const uniform: UniformLines = { nu: background, rows: new Uint8Array(nz), columns: new Uint8Array(nx) };
+        uniform.rows.fill(1, Math.floor(mark.fromRow * nz));
+        uniform.columns.fill(1, 0, Math.floor(mark.leftRun * nx));
+        uniform.columns.fill(1, nx - Math.floor(mark.rightRun * nx));
+        for (const f of mark.scattered) uniform.columns[Math.min(nx - 1, Math.floor(f * nx))] = 1;
+        for (let j = 0; j < nz; j++) {
+          for (let i = 0; i < nx; i++) if (uniform.rows[j] === 1 || uniform.columns[i] === 1) nu[j * nx + i] = background;
+        }
+        const before = stepper.content(a);
+        const inA = stepper.stepVariable(a, nu, scheme, held, 1e20);
+        const inB = stepper.stepVariable(b, nu, scheme, held, 1e20, uniform);
+        let top = 0;
+        let worst = 0;
+        for (let k = 0; k < a.length; k++) {
+          top = Math.max(top, Math.abs(a[k]));
+          worst = Math.max(worst, Math.abs(a[k] - b[k]));
+        }
+        const bound = 64 * Number.EPSILON * (1 + 16 * meshNumber);
+        if (!(worst <= bound * top)) throw new Error(`the shared factors moved the step by ${(worst / top).toExponential(2)} of the largest value, above ${bound.toExponential(2)}`);
+        const scale = Math.max(before, absoluteContent(stepper, b));
+        if (!(Math.abs(stepper.content(b) - before - inB) <= 1e-11 * scale)) throw new Error('content not conserved with the shared factors');
+        if (!(Math.abs(inA - inB) <= 1e-11 * scale)) throw new Error(`inflow ${inA} line by line, ${inB} with the shared factors`);
+      }, 10_000);
+  });
+
   it('a NaN or Inf anywhere reaches the bottom row within one step (what the guard checks)', () => {
     // simulate.ts's guardFinite looks only at the bottom row after each step; that is enough
     // only if every non-finite value, wherever it is, gets there in one step. A held surface
     // node is overwritten by the held value before the step (as simulate.ts does), so a bad
     // value there is gone, not hidden: the property is "non-finite anywhere ⇔ bottom row not finite".
     const bad = fc.constantFrom(Number.NaN, Infinity, -Infinity);
-    check('stepper: non-finite reaches the bottom row', fc.tuple(problems, fc.integer(), bad, fc.nat(), fc.constantFrom(...SCHEMES), fc.boolean(), fc.boolean(), logUniform(1e-3, 1e3)),
-      ([{ mesh, mask, stepper }, seed, value, where, scheme, held, variable, meshNumber]) => {
+    // With variable ν, the deepest rows and the columns at both walls may be marked uniform
+    // (as simulate.ts marks them where no dopant has arrived), so that the shared factors carry it too.
+    check('stepper: non-finite reaches the bottom row', fc.tuple(problems, fc.integer(), bad, fc.nat(), fc.constantFrom(...SCHEMES), fc.boolean(), fc.boolean(), logUniform(1e-3, 1e3), fc.boolean()),
+      ([{ mesh, mask, stepper }, seed, value, where, scheme, held, variable, meshNumber, marked]) => {
         const c = field(mesh, seed);
         const k = where % c.length;
         c[k] = value;
         const heldNode = held && k < mesh.nx && mask.open[k] === 1;
         if (held) stepper.holdSurface(c, 1e20);
         const nu = meshNumber * finest(mesh) ** 2;
-        if (variable) stepper.stepVariable(c, nodeNu(nu, c), scheme, held, 1e20);
-        else stepper.step(c, nu, scheme, held, 1e20);
+        if (variable) {
+          const node = nodeNu(nu, c);
+          let uniform: UniformLines | null = null;
+          if (marked) {
+            uniform = { nu, rows: new Uint8Array(mesh.nz), columns: new Uint8Array(mesh.nx) };
+            uniform.rows.fill(1, Math.floor(mesh.nz / 3));
+            uniform.columns.fill(1, 0, Math.floor(mesh.nx / 3));
+            uniform.columns.fill(1, mesh.nx - Math.floor(mesh.nx / 3));
+            for (let r = 0; r < mesh.nz; r++) {
+              for (let i = 0; i < mesh.nx; i++) if (uniform.rows[r] === 1 || uniform.columns[i] === 1) node[r * mesh.nx + i] = nu;
+            }
+          }
+          stepper.stepVariable(c, node, scheme, held, 1e20, uniform);
+        } else {
+          stepper.step(c, nu, scheme, held, 1e20);
+        }
         const anywhere = c.some((v) => !Number.isFinite(v));
         if (!heldNode && !anywhere) throw new Error(`the ${value} at node ${k} vanished in one step`);
         if (anywhere === stepper.bottomRowFinite(c)) {
