@@ -106,10 +106,11 @@ const DAMPED_STEPS = 3;
 /**
  * Where no dopant has arrived, ν is the background's (substrate doping alone) at every node.
  * A row or column whose ν is within this fraction of it everywhere takes exactly that value,
- * and the stepper solves such lines with one shared factor (the constant-D kernel, about half
- * the cost). 1e-6 of D moves a junction by about 5e-7 of its depth, far below the
- * discretisation's own error; ν on a line's faces stays one value seen from both sides, so
- * the step stays exactly conservative.
+ * and the stepper solves such lines, and such runs at the ends of the other lines, with shared
+ * factors (about half the cost of factorising line by line; see FlatEnds in adi.ts). 1e-6 of
+ * D moves a junction by about 5e-7 of its depth, far below the discretisation's own error;
+ * ν on a line's faces stays one value seen from both sides, so the step stays exactly
+ * conservative.
  */
 const UNIFORM_TOLERANCE = 1e-6;
 
