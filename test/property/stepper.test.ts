@@ -1,9 +1,10 @@
 import fc from 'fast-check';
 import { describe, it } from 'vitest';
-import { AdiStepper, type Scheme, type UniformLines } from '../../packages/solver2d/src/adi.ts';
+import { AdiStepper, type Scheme } from '../../packages/solver2d/src/adi.ts';
 import { buildMask, type Mask } from '../../packages/solver2d/src/mask.ts';
 import { buildMesh, type Mesh } from '../../packages/solver2d/src/mesh.ts';
 import { check, logUniform, printCountsAfterAll, uniform } from './support.ts';
+import { markUniformLines } from '../support/uniform-lines.ts';
 
 /**
  * Invariants of one ADI time step, on generated meshes and fields: the finite-volume scheme
@@ -179,14 +180,10 @@ describe('one ADI step on generated meshes and fields', () => {
         const b = a.slice();
         const background = meshNumber * finest(mesh) ** 2;
         const nu = nodeNu(background, a);
-        const uniform: UniformLines = { nu: background, rows: new Uint8Array(nz), columns: new Uint8Array(nx) };
-        uniform.rows.fill(1, Math.floor(mark.fromRow * nz));
-        uniform.columns.fill(1, 0, Math.floor(mark.leftRun * nx));
-        uniform.columns.fill(1, nx - Math.floor(mark.rightRun * nx));
-        for (const f of mark.scattered) uniform.columns[Math.min(nx - 1, Math.floor(f * nx))] = 1;
-        for (let j = 0; j < nz; j++) {
-          for (let i = 0; i < nx; i++) if (uniform.rows[j] === 1 || uniform.columns[i] === 1) nu[j * nx + i] = background;
-        }
+        const uniform = markUniformLines(nu, nx, nz, background, {
+          rowsFrom: Math.floor(mark.fromRow * nz), left: Math.floor(mark.leftRun * nx), right: Math.floor(mark.rightRun * nx),
+          columns: mark.scattered.map((f) => Math.min(nx - 1, Math.floor(f * nx))),
+        });
         const before = stepper.content(a);
         const inA = stepper.stepVariable(a, nu, scheme, held, 1e20);
         const inB = stepper.stepVariable(b, nu, scheme, held, 1e20, uniform);
@@ -222,17 +219,8 @@ describe('one ADI step on generated meshes and fields', () => {
         const nu = meshNumber * finest(mesh) ** 2;
         if (variable) {
           const node = nodeNu(nu, c);
-          let uniform: UniformLines | null = null;
-          if (marked) {
-            uniform = { nu, rows: new Uint8Array(mesh.nz), columns: new Uint8Array(mesh.nx) };
-            uniform.rows.fill(1, Math.floor(mesh.nz / 3));
-            uniform.columns.fill(1, 0, Math.floor(mesh.nx / 3));
-            uniform.columns.fill(1, mesh.nx - Math.floor(mesh.nx / 3));
-            for (let r = 0; r < mesh.nz; r++) {
-              for (let i = 0; i < mesh.nx; i++) if (uniform.rows[r] === 1 || uniform.columns[i] === 1) node[r * mesh.nx + i] = nu;
-            }
-          }
-          stepper.stepVariable(c, node, scheme, held, 1e20, uniform);
+          const third = { rowsFrom: Math.floor(mesh.nz / 3), left: Math.floor(mesh.nx / 3), right: Math.floor(mesh.nx / 3) };
+          stepper.stepVariable(c, node, scheme, held, 1e20, marked ? markUniformLines(node, mesh.nx, mesh.nz, nu, third) : null);
         } else {
           stepper.step(c, nu, scheme, held, 1e20);
         }

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { AdiStepper, type Scheme, type UniformLines } from '../../packages/solver2d/src/adi.ts';
 import { buildMask } from '../../packages/solver2d/src/mask.ts';
 import { buildMesh, gradedAxis } from '../../packages/solver2d/src/mesh.ts';
+import { markUniformLines } from '../support/uniform-lines.ts';
 
 function setup() {
   const rule = { fineUm: 0.05, fineReachUm: 0.5, grade: 0.2, maxUm: 0.4 };
@@ -23,18 +24,8 @@ function field(nx: number, nz: number): Float64Array {
  */
 function partlyUniform(c: Float64Array, nx: number, nz: number): { nu: Float64Array; uniform: UniformLines } {
   const background = 0.002;
-  const uniform: UniformLines = { nu: background, rows: new Uint8Array(nz), columns: new Uint8Array(nx) };
-  uniform.rows.fill(1, Math.floor(nz / 2));
-  uniform.columns.fill(1, 0, 9);
-  uniform.columns.fill(1, nx - 7);
-  const nu = new Float64Array(c.length);
-  for (let j = 0; j < nz; j++) {
-    for (let i = 0; i < nx; i++) {
-      const k = j * nx + i;
-      nu[k] = uniform.rows[j] === 1 || uniform.columns[i] === 1 ? background : background + 0.02 * c[k] * c[k];
-    }
-  }
-  return { nu, uniform };
+  const nu = c.map((v) => background + 0.02 * v * v);
+  return { nu, uniform: markUniformLines(nu, nx, nz, background, { rowsFrom: Math.floor(nz / 2), left: 9, right: 7 }) };
 }
 
 const CASES: [Scheme, boolean][] = [['peaceman-rachford', false], ['peaceman-rachford', true], ['split-implicit', false], ['split-implicit', true]];

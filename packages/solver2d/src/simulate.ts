@@ -459,6 +459,7 @@ class CoupledDiffusivity {
   private readonly hasPrevious = new Set<string>();
   /** each species' largest value when prepare() last saw it, cm^-3 */
   private readonly highest: Record<string, number> = {};
+  private readonly currentPeaks: Record<string, number> = {};
   private readonly net: Float64Array;
   /** ν at the nodes, row-major (both sweeps read it so) */
   private readonly nu: Float64Array;
@@ -484,10 +485,14 @@ class CoupledDiffusivity {
     this.hasPrevious.clear();
   }
 
-  /** Each species' peak as the last prepare() saw it, where below its source peak. */
+  /**
+   * Each species' peak as the last prepare() saw it, where below its source peak (one record,
+   * rewritten at each call: it is asked for at every time step).
+   */
   peaks(sources: Record<string, number>): Record<string, number> {
-    const out: Record<string, number> = { ...sources };
-    for (const [name, value] of Object.entries(this.highest)) out[name] = Math.min(out[name] ?? value, value);
+    const out = this.currentPeaks;
+    for (const name in sources) out[name] = sources[name];
+    for (const name in this.highest) out[name] = Math.min(out[name] ?? this.highest[name], this.highest[name]);
     return out;
   }
 
