@@ -22,17 +22,27 @@ export function buildField(sim: Simulation): Field {
   const donors = new Float64Array(cells);
   const acceptors = new Float64Array(cells);
   (substrate.type === 'donor' ? donors : acceptors).fill(substrate.concentrationCm3);
-  for (const s of species) {
-    const c = sim.concentration[s.name];
-    const target = s.type === 'donor' ? donors : acceptors;
-    for (let k = 0; k < cells; k++) target[k] += c[k];
-  }
+  for (const s of species) addInto(s.type === 'donor' ? donors : acceptors, sim.concentration[s.name]);
   const net = new Float64Array(cells);
-  for (let k = 0; k < cells; k++) net[k] = donors[k] - acceptors[k];
+  difference(net, donors, acceptors);
   const shape = [mesh.nz, mesh.nx];
   const layers: Record<string, NdArray<Float64Array>> = { net: ndarray(net, shape) };
   for (const s of species) layers[s.name] = ndarray(sim.concentration[s.name], shape);
   return { mesh, names: ['net', ...species.map((s) => s.name)], layers, donors, acceptors };
+}
+
+// The loops over every node, each a function of its own: compiled as part of buildField,
+// which a worker thread calls a few times a run, they took a recompilation and a deoptimisation
+// of the whole at nearly every call.
+
+/** target += c */
+function addInto(target: Float64Array, c: Float64Array): void {
+  for (let k = 0; k < target.length; k++) target[k] += c[k];
+}
+
+/** out = a − b */
+function difference(out: Float64Array, a: Float64Array, b: Float64Array): void {
+  for (let k = 0; k < out.length; k++) out[k] = a[k] - b[k];
 }
 
 /** All layers stacked into one [layers, nz, nx] buffer, for a file or a worker message. */

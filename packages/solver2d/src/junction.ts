@@ -87,30 +87,28 @@ export function zeroContours(grid: NodeGrid): Polyline[] {
       else links.set(a, [b]);
     }
   };
-  for (let j = 0; j + 1 < nz; j++) {
-    for (let i = 0; i + 1 < nx; i++) {
-      const n0 = j * nx + i;
-      const v00 = values[n0], v10 = values[n0 + 1], v01 = values[n0 + nx], v11 = values[n0 + nx + 1];
-      const code = (v00 > 0 ? 1 : 0) | (v10 > 0 ? 2 : 0) | (v11 > 0 ? 4 : 0) | (v01 > 0 ? 8 : 0);
-      if (code === 0 || code === 15) continue;
-      const top = 2 * n0;
-      const bottom = 2 * (n0 + nx);
-      const left = 2 * n0 + 1;
-      const right = 2 * (n0 + 1) + 1;
-      switch (code) {
-        case 1: case 14: link(top, left); break;
-        case 2: case 13: link(top, right); break;
-        case 3: case 12: link(left, right); break;
-        case 4: case 11: link(right, bottom); break;
-        case 6: case 9: link(top, bottom); break;
-        case 7: case 8: link(left, bottom); break;
-        case 5: case 10: {
-          const centreAbove = v00 + v10 + v01 + v11 > 0;
-          // code 5: corners 00 and 11 above. If the centre is above too, they connect.
-          if ((code === 5) === centreAbove) { link(top, right); link(left, bottom); }
-          else { link(top, left); link(right, bottom); }
-          break;
-        }
+  const cells = crossingCells(values, nx, nz);
+  for (let c = 0; c < cells.length; c++) {
+    const n0 = cells[c] >> 4;
+    const code = cells[c] & 15;
+    const v00 = values[n0], v10 = values[n0 + 1], v01 = values[n0 + nx], v11 = values[n0 + nx + 1];
+    const top = 2 * n0;
+    const bottom = 2 * (n0 + nx);
+    const left = 2 * n0 + 1;
+    const right = 2 * (n0 + 1) + 1;
+    switch (code) {
+      case 1: case 14: link(top, left); break;
+      case 2: case 13: link(top, right); break;
+      case 3: case 12: link(left, right); break;
+      case 4: case 11: link(right, bottom); break;
+      case 6: case 9: link(top, bottom); break;
+      case 7: case 8: link(left, bottom); break;
+      case 5: case 10: {
+        const centreAbove = v00 + v10 + v01 + v11 > 0;
+        // code 5: corners 00 and 11 above. If the centre is above too, they connect.
+        if ((code === 5) === centreAbove) { link(top, right); link(left, bottom); }
+        else { link(top, left); link(right, bottom); }
+        break;
       }
     }
   }
@@ -137,6 +135,32 @@ export function zeroContours(grid: NodeGrid): Polyline[] {
     lines.push(loop);
   }
   return lines;
+}
+
+/**
+ * The cells the zero contour crosses, in row order, each as 16·(index of its top-left node)
+ * + its marching-squares code (bit 1 top-left above zero, 2 top-right, 4 bottom-right,
+ * 8 bottom-left). The scan over every cell is a function of its own: inside zeroContours,
+ * with the linking closures inlined into it, it took a recompilation of the whole at most
+ * calls of a sweep's worker thread.
+ */
+function crossingCells(values: Float64Array, nx: number, nz: number): Int32Array {
+  let count = 0;
+  let out = new Int32Array(64);
+  for (let j = 0; j + 1 < nz; j++) {
+    for (let i = 0; i + 1 < nx; i++) {
+      const n0 = j * nx + i;
+      const code = (values[n0] > 0 ? 1 : 0) | (values[n0 + 1] > 0 ? 2 : 0) | (values[n0 + nx + 1] > 0 ? 4 : 0) | (values[n0 + nx] > 0 ? 8 : 0);
+      if (code === 0 || code === 15) continue;
+      if (count === out.length) {
+        const grown = new Int32Array(2 * count);
+        grown.set(out);
+        out = grown;
+      }
+      out[count++] = 16 * n0 + code;
+    }
+  }
+  return out.subarray(0, count);
 }
 
 /** Values of the grid along the column at x (linear between the neighbouring node columns). */

@@ -32,10 +32,7 @@ export function maskEdges(windows: readonly Window[], widthUm: number): number[]
 
 export function buildMask(mesh: Mesh, windows: readonly Window[]): Mask {
   const open = new Uint8Array(mesh.nx);
-  for (let i = 0; i < mesh.nx; i++) {
-    const xc = mesh.x[i];
-    for (const [x0, x1] of windows) if (xc > x0 && xc < x1) open[i] = 1;
-  }
+  openCells(open, mesh.x, Float64Array.from(windows.flat()));
   const segments: SurfaceSegment[] = [];
   let start = 0;
   for (let i = 1; i <= mesh.nx; i++) {
@@ -45,4 +42,17 @@ export function buildMask(mesh: Mesh, windows: readonly Window[]): Mask {
     }
   }
   return { windows, open, segments, edges: maskEdges(windows, mesh.widthUm) };
+}
+
+/**
+ * open[i] = 1 where the cell centre x[i] lies inside a window, `bounds` the windows' ends in
+ * pairs. On typed arrays, whatever the windows' values: a window at whole micrometres and one
+ * at half micrometres are arrays of different element kinds, and a sweep that meets both
+ * undid this loop's compiled code each time it changed.
+ */
+function openCells(open: Uint8Array, x: Float64Array, bounds: Float64Array): void {
+  for (let i = 0; i < x.length; i++) {
+    const xc = x[i];
+    for (let w = 0; w + 1 < bounds.length; w += 2) if (xc > bounds[w] && xc < bounds[w + 1]) open[i] = 1;
+  }
 }

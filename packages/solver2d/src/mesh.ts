@@ -49,17 +49,41 @@ const MIN_SAMPLES = 64;
 const MAX_SAMPLES = 2048;
 const SAMPLES_PER_CELL = 16;
 
-function samplesFor(a: number, b: number, rule: SpacingRule): number {
-  const finest = Math.min(rule.fineUm, rule.maxUm, rule.nearUm ?? Infinity);
+/**
+ * A SpacingRule with every field a number (no near spacing: `nearUm` Infinity), made one way:
+ * the rules a plan makes differ in shape (with or without the near spacing, literal or
+ * spread) and the features and fixed points in their element kinds (a window edge at 5 µm
+ * or at 5.5 µm), and each new shape reaching these loops once they are compiled undid the
+ * compiled code (seen as 4–5 recompilations of each per worker thread in a width sweep).
+ */
+class Spacing {
+  readonly fineUm: number;
+  readonly fineReachUm: number;
+  readonly grade: number;
+  readonly maxUm: number;
+  readonly nearUm: number;
+  readonly nearReachUm: number;
+
+  constructor(rule: SpacingRule) {
+    this.fineUm = rule.fineUm;
+    this.fineReachUm = rule.fineReachUm;
+    this.grade = rule.grade;
+    this.maxUm = rule.maxUm;
+    this.nearUm = rule.nearUm ?? Infinity;
+    this.nearReachUm = rule.nearReachUm ?? 0;
+  }
+}
+
+function samplesFor(a: number, b: number, rule: Spacing): number {
+  const finest = Math.min(rule.fineUm, rule.maxUm, rule.nearUm);
   const wanted = Math.ceil((SAMPLES_PER_CELL * (b - a)) / finest);
   return Math.min(MAX_SAMPLES, Math.max(MIN_SAMPLES, Number.isFinite(wanted) ? wanted : MAX_SAMPLES));
 }
 
-function spacingAt(distance: number, rule: SpacingRule): number {
+function spacingAt(distance: number, rule: Spacing): number {
   const beyond = Math.max(0, distance - rule.fineReachUm);
   const s = Math.min(rule.maxUm, rule.fineUm + rule.grade * beyond);
-  if (rule.nearUm === undefined) return s;
-  return Math.min(s, rule.nearUm + rule.grade * Math.max(0, distance - (rule.nearReachUm ?? 0)));
+  return Math.min(s, rule.nearUm + rule.grade * Math.max(0, distance - rule.nearReachUm));
 }
 
 /**
@@ -67,7 +91,7 @@ function spacingAt(distance: number, rule: SpacingRule): number {
  * (samples + 1 long) it receives the running integral. `features` are sorted; the distance
  * to the nearest one is kept with a cursor, since the samples only move right.
  */
-function spacingIntegral(a: number, b: number, features: readonly number[], rule: SpacingRule, samples: number, cumulative?: Float64Array): number {
+function spacingIntegral(a: number, b: number, features: Float64Array, rule: Spacing, samples: number, cumulative: Float64Array | null): number {
   const h = (b - a) / samples;
   let p = 0;
   const inverseSpacing = (x: number) => {
@@ -95,7 +119,7 @@ function cellsFor(total: number): number {
  * Places nodes on [a, b] so that the spacing follows 1/∫ds/s(x): n cells where n is the
  * integral rounded up, node k where the cumulative integral reaches k·(total/n).
  */
-function gradedInterval(a: number, b: number, features: readonly number[], rule: SpacingRule, out: number[]): void {
+function gradedInterval(a: number, b: number, features: Float64Array, rule: Spacing, out: number[]): void {
   const samples = samplesFor(a, b, rule);
   const h = (b - a) / samples;
   const cumulative = new Float64Array(samples + 1);
@@ -111,12 +135,12 @@ function gradedInterval(a: number, b: number, features: readonly number[], rule:
   out.push(b);
 }
 
-function axisStops(length: number, fixed: readonly number[]): number[] {
-  return [...new Set([0, length, ...fixed])].sort((p, q) => p - q);
+function axisStops(length: number, fixed: readonly number[]): Float64Array {
+  return Float64Array.from(new Set([0, length, ...fixed])).sort();
 }
 
-function sorted(features: readonly number[]): number[] {
-  return [...features].sort((p, q) => p - q);
+function sorted(features: readonly number[]): Float64Array {
+  return Float64Array.from(features).sort();
 }
 
 /**
@@ -127,8 +151,11 @@ function sorted(features: readonly number[]): number[] {
 export function gradedAxisCells(length: number, fixed: readonly number[], features: readonly number[], rule: SpacingRule): number {
   const stops = axisStops(length, fixed);
   const near = sorted(features);
+  const spacing = new Spacing(rule);
   let cells = 0;
-  for (let s = 0; s + 1 < stops.length; s++) cells += cellsFor(spacingIntegral(stops[s], stops[s + 1], near, rule, samplesFor(stops[s], stops[s + 1], rule)));
+  for (let s = 0; s + 1 < stops.length; s++) {
+    cells += cellsFor(spacingIntegral(stops[s], stops[s + 1], near, spacing, samplesFor(stops[s], stops[s + 1], spacing), null));
+  }
   return cells;
 }
 
@@ -136,8 +163,9 @@ export function gradedAxisCells(length: number, fixed: readonly number[], featur
 export function gradedAxis(length: number, fixed: readonly number[], features: readonly number[], rule: SpacingRule): Float64Array {
   const stops = axisStops(length, fixed);
   const near = sorted(features);
+  const spacing = new Spacing(rule);
   const out: number[] = [0];
-  for (let s = 0; s + 1 < stops.length; s++) gradedInterval(stops[s], stops[s + 1], near, rule, out);
+  for (let s = 0; s + 1 < stops.length; s++) gradedInterval(stops[s], stops[s + 1], near, spacing, out);
   return Float64Array.from(out);
 }
 
