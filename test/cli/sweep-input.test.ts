@@ -129,3 +129,13 @@ describe('edgewise sweep: parameters from flags and from the recipe', () => {
     expect(help.stdout).toContain('edgewise merge DIR…');
   });
 });
+
+describe('the sweep worker', () => {
+  it('loads no schema library: the main thread validates every run before any starts, and the workers plan what it validated', () => {
+    // The launcher bundles the worker beside the CLI on its first start.
+    expect(edgewise(['--help']).code).toBe(0);
+    const bundle = readFileSync(join(import.meta.dirname, '..', '..', 'packages', 'cli', 'dist', 'sweep', 'run.worker.mjs'), 'utf8');
+    expect(bundle).toContain('planRecipe');
+    expect(bundle).not.toContain('ZodError');
+  });
+});

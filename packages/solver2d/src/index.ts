@@ -1,4 +1,5 @@
-export { parseRecipe, recipeSchema, RecipeError, RECIPE_SCHEMA_ID, STEP_KINDS, type Recipe, type Step } from './recipe.ts';
+export { parseRecipe, recipeSchema, RECIPE_SCHEMA_ID, STEP_KINDS, type Recipe, type Step } from './recipe.ts';
+export { RecipeError } from './recipe-terms.ts';
 export { planRecipe, DEFAULT_LIMITS, type Plan, type PlanLimits, type StepPlan } from './plan.ts';
 export { simulate, SolverError, StoppedError, openWidth, type Simulation, type SimulateOptions, type Progress } from './simulate.ts';
 export { analyze, REPORT_SCHEMA_ID, type Report, type WindowReport, type Analysis } from './analyze.ts';

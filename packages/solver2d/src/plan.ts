@@ -3,7 +3,8 @@ import { BUILTIN_DOPANTS, diffusivityAt, intrinsicDiffusivity, type Dopant, type
 import type { ImplantSpec } from './implant.ts';
 import { buildMask, maskEdges, type Mask, type Window } from './mask.ts';
 import { buildMesh, gradedAxis, gradedAxisCells, type Mesh, type SpacingRule } from './mesh.ts';
-import { DIFFUSION_MODELS, RecipeError, type Recipe, type Step } from './recipe.ts';
+import type { Recipe, Step } from './recipe.ts';
+import { DIFFUSION_MODELS, RecipeError } from './recipe-terms.ts';
 import { interpolateSolubility, solidSolubilityCm3 } from './solubility.ts';
 import { intrinsicCarriersCm3 } from './intrinsic.ts';
 import { concentrationFromDose, minutesToSeconds } from './units.ts';

@@ -1,16 +1,12 @@
 import { z } from 'zod';
+import { DIFFUSION_MODELS, RecipeError } from './recipe-terms.ts';
+
+export { DIFFUSION_MODELS, RecipeError };
 
 /**
  * The recipe contract ("edgewise.recipe/1") and its validation. Every failure becomes one
  * RecipeError naming the field (as a path like `steps[1].minutes`) and what is allowed.
  */
-export class RecipeError extends Error {
-  constructor(readonly field: string, readonly detail: string) {
-    super(`${field}: ${detail}`);
-    this.name = 'RecipeError';
-  }
-}
-
 export const RECIPE_SCHEMA_ID = 'edgewise.recipe/1';
 
 /** Temperatures the diffusivity tables are meant for; silicon melts at 1414 °C. */
@@ -144,7 +140,6 @@ const userDopant = strict({
     .min(2, { error: 'must list at least two [temperature °C, concentration cm^-3] pairs' }).optional(),
 });
 
-export const DIFFUSION_MODELS = ['intrinsic', 'charged-defect'] as const;
 const model = z.enum(DIFFUSION_MODELS, { error: explain(`one of ${DIFFUSION_MODELS.join(', ')}`) });
 
 /**

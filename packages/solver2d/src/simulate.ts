@@ -1,5 +1,5 @@
 import { AdiStepper, PRIMING_CALLS, type UniformLines } from './adi.ts';
-import { RecipeError } from './recipe.ts';
+import { RecipeError } from './recipe-terms.ts';
 import { componentsAt, diffusivityAt, intrinsicDiffusivity, type ComponentDiffusivities } from './dopants.ts';
 import { addImplant } from './implant.ts';
 import { intrinsicCarriersCm3 } from './intrinsic.ts';

@@ -2,7 +2,7 @@ import { existsSync, statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { basename, extname, join, resolve } from 'node:path';
 import { parseArgs } from 'node:util';
-import type { PlanLimits } from '@edgewise/solver2d';
+import { parseRecipe, type PlanLimits } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
 import { inside, makeFolders } from '../files.ts';
 import { fmtLength, fmtRatio, fmtSci, table } from '../format.ts';
@@ -171,7 +171,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
       const recipe = runRecipe(matrix.base, matrix.parameters, run.values);
       const row = rows.get(run.id)!;
       try {
-        const outcome = await currentPool.run({ id: run.id, out: resolve(out), dir: run.dir, recipe, recipeText: `${JSON.stringify(recipe, null, 2)}\n`, errorSolves: options.errorSolves, limits: options.limits });
+        const outcome = await currentPool.run({ id: run.id, out: resolve(out), dir: run.dir, recipe, parsed: parseRecipe(recipe), recipeText: `${JSON.stringify(recipe, null, 2)}\n`, errorSolves: options.errorSolves, limits: options.limits });
         row.windows = outcome.windows;
         row.status = 'ok';
         for (const w of outcome.warnings) warnings.push(`run ${run.id}: ${w}`);

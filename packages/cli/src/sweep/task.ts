@@ -1,4 +1,4 @@
-import type { PlanLimits, WindowReport } from '@edgewise/solver2d';
+import type { PlanLimits, Recipe, WindowReport } from '@edgewise/solver2d';
 
 /** What the main thread sends a worker for one run, and what comes back. */
 export interface RunTask {
@@ -8,6 +8,8 @@ export interface RunTask {
   /** the run folder, relative to `out` */
   dir: string;
   recipe: Record<string, unknown>;
+  /** the same, validated by the main thread (the worker plans it as it is) */
+  parsed: Recipe;
   /** the recipe as written to the folder's recipe.json */
   recipeText: string;
   /** coarser solves for the error bars (0: none; 1: mesh 2h; 2: 2h and 4h) */
