@@ -89,8 +89,8 @@ export function zeroContours(grid: NodeGrid): Polyline[] {
   };
   const cells = crossingCells(values, nx, nz);
   for (let c = 0; c < cells.length; c++) {
-    const n0 = cells[c] >> 4;
-    const code = cells[c] & 15;
+    const code = cells[c] % 16;
+    const n0 = (cells[c] - code) / 16;
     const v00 = values[n0], v10 = values[n0 + 1], v01 = values[n0 + nx], v11 = values[n0 + nx + 1];
     const top = 2 * n0;
     const bottom = 2 * (n0 + nx);
@@ -142,18 +142,18 @@ export function zeroContours(grid: NodeGrid): Polyline[] {
  * + its marching-squares code (bit 1 top-left above zero, 2 top-right, 4 bottom-right,
  * 8 bottom-left). The scan over every cell is a function of its own: inside zeroContours,
  * with the linking closures inlined into it, it took a recompilation of the whole at most
- * calls of a sweep's worker thread.
+ * calls of a sweep's worker thread. Kept in doubles, exact for any mesh the limits allow.
  */
-function crossingCells(values: Float64Array, nx: number, nz: number): Int32Array {
+function crossingCells(values: Float64Array, nx: number, nz: number): Float64Array {
   let count = 0;
-  let out = new Int32Array(64);
+  let out = new Float64Array(64);
   for (let j = 0; j + 1 < nz; j++) {
     for (let i = 0; i + 1 < nx; i++) {
       const n0 = j * nx + i;
       const code = (values[n0] > 0 ? 1 : 0) | (values[n0 + 1] > 0 ? 2 : 0) | (values[n0 + nx + 1] > 0 ? 4 : 0) | (values[n0 + nx] > 0 ? 8 : 0);
       if (code === 0 || code === 15) continue;
       if (count === out.length) {
-        const grown = new Int32Array(2 * count);
+        const grown = new Float64Array(2 * count);
         grown.set(out);
         out = grown;
       }

@@ -1,12 +1,12 @@
 import { z } from 'zod';
 import { DIFFUSION_MODELS, RecipeError } from './recipe-terms.ts';
 
-export { DIFFUSION_MODELS, RecipeError };
-
 /**
  * The recipe contract ("edgewise.recipe/1") and its validation. Every failure becomes one
  * RecipeError naming the field (as a path like `steps[1].minutes`) and what is allowed.
  */
+export { DIFFUSION_MODELS, RecipeError };
+
 export const RECIPE_SCHEMA_ID = 'edgewise.recipe/1';
 
 /** Temperatures the diffusivity tables are meant for; silicon melts at 1414 °C. */
