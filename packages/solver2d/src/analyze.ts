@@ -4,6 +4,7 @@ import {
   columnAt, crossings, junctionIndicator, surfaceCrossings, wallPaddedGrid, zeroContours,
   type NodeGrid, type Polyline,
 } from './junction.ts';
+import { finestX, finestZ } from './mesh.ts';
 import type { LedgerEntry, Simulation } from './simulate.ts';
 import { doseFromConcentrationUm } from './units.ts';
 
@@ -70,28 +71,15 @@ function rounded(v: number, digits = 6): number {
   return Number(v.toPrecision(digits));
 }
 
-// The loops over a column or an axis, each a function of its own: inside analyze, the first
-// of them to run hot had the whole of analyze compiled mid-call, with all it calls, once in
-// every worker thread of a sweep.
-
-/** Σ a[j]·b[j] */
+/**
+ * Σ a[j]·b[j]. A function of its own, as are the mesh's finestX and finestZ: a loop inside
+ * analyze that ran hot had the whole of analyze compiled mid-call, with all it calls, once
+ * in every worker thread of a sweep.
+ */
 function weightedSum(a: Float64Array, b: Float64Array): number {
   let sum = 0;
   for (let j = 0; j < a.length; j++) sum += a[j] * b[j];
   return sum;
-}
-
-function smallest(a: Float64Array): number {
-  let least = Infinity;
-  for (let k = 0; k < a.length; k++) least = Math.min(least, a[k]);
-  return least;
-}
-
-/** The smallest difference of successive values. */
-function smallestStep(a: Float64Array): number {
-  let least = Infinity;
-  for (let k = 1; k < a.length; k++) least = Math.min(least, a[k] - a[k - 1]);
-  return least;
 }
 
 export function analyze(sim: Simulation): Analysis {
@@ -152,8 +140,6 @@ export function analyze(sim: Simulation): Analysis {
   const doseCm2: Record<string, number> = {};
   for (const s of plan.species) doseCm2[s.name] = rounded(sim.ledger[s.name].inSiliconCm2);
 
-  const finestX = smallest(mesh.dx);
-  const finestZ = smallestStep(mesh.z);
 
   const results = engineeringResults(sim, field, grid);
   const report: Report = {
@@ -161,7 +147,7 @@ export function analyze(sim: Simulation): Analysis {
     title: recipe.title ?? null,
     substrate: { ...plan.substrate },
     crossSection: { widthUm: mesh.widthUm, depthUm: rounded(mesh.depthUm) },
-    mesh: { columns: mesh.nx, rows: mesh.nz, finestXUm: rounded(finestX, 4), finestZUm: rounded(finestZ, 4) },
+    mesh: { columns: mesh.nx, rows: mesh.nz, finestXUm: rounded(finestX(mesh), 4), finestZUm: rounded(finestZ(mesh), 4) },
     windows: windows.map((w, k) => ({ ...w, ...results.windows[k] })),
     spacings: results.spacings,
     mobility: results.mobility,

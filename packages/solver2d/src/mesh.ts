@@ -169,6 +169,20 @@ export function gradedAxis(length: number, fixed: readonly number[], features: r
   return Float64Array.from(out);
 }
 
+/** The narrowest cell width, µm. */
+export function finestX(mesh: Mesh): number {
+  let least = Infinity;
+  for (let i = 0; i < mesh.nx; i++) least = Math.min(least, mesh.dx[i]);
+  return least;
+}
+
+/** The smallest spacing of successive depth nodes, µm. */
+export function finestZ(mesh: Mesh): number {
+  let least = Infinity;
+  for (let j = 1; j < mesh.nz; j++) least = Math.min(least, mesh.z[j] - mesh.z[j - 1]);
+  return least;
+}
+
 export function buildMesh(xFaces: Float64Array, z: Float64Array): Mesh {
   const nx = xFaces.length - 1;
   const nz = z.length;

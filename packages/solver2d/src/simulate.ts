@@ -4,6 +4,7 @@ import { componentsAt, diffusivityAt, intrinsicDiffusivity, type ComponentDiffus
 import { addImplant } from './implant.ts';
 import { intrinsicCarriersCm3 } from './intrinsic.ts';
 import { integrate, temperatureAt, type Plan, type SpeciesPlan, type StepPlan } from './plan.ts';
+import { finestX, finestZ } from './mesh.ts';
 import { geometricSteps } from './schedule.ts';
 import { concentrationFromDose, doseFromConcentrationUm } from './units.ts';
 
@@ -315,9 +316,7 @@ function sourcePeaks(plan: Plan): Record<string, number> {
 export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation {
   const { mesh, mask, species, steps } = plan;
   const cells = mesh.nx * mesh.nz;
-  let hFine = Infinity;
-  for (let i = 0; i < mesh.nx; i++) hFine = Math.min(hFine, mesh.dx[i]);
-  for (let j = 1; j < mesh.nz; j++) hFine = Math.min(hFine, mesh.z[j] - mesh.z[j - 1]);
+  const hFine = Math.min(finestX(mesh), finestZ(mesh));
 
   // Plan every step's time steps first, so progress knows the total (an upper bound where
   // the steps follow a falling peak; it is brought down as each process step ends).

@@ -171,7 +171,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
       const recipe = runRecipe(matrix.base, matrix.parameters, run.values);
       const row = rows.get(run.id)!;
       try {
-        const outcome = await currentPool.run({ id: run.id, out: resolve(out), dir: run.dir, recipe, parsed: parseRecipe(recipe), recipeText: `${JSON.stringify(recipe, null, 2)}\n`, errorSolves: options.errorSolves, limits: options.limits });
+        const outcome = await currentPool.run({ id: run.id, out: resolve(out), dir: run.dir, recipe: parseRecipe(recipe), recipeText: `${JSON.stringify(recipe, null, 2)}\n`, errorSolves: options.errorSolves, limits: options.limits });
         row.windows = outcome.windows;
         row.status = 'ok';
         for (const w of outcome.warnings) warnings.push(`run ${run.id}: ${w}`);

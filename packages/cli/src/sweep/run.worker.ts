@@ -22,7 +22,7 @@ const api: RunWorkerApi = {
     // An old marker would vouch for files this run is about to replace.
     removeFile(inside(task.out, join(task.dir, RECIPE_FILE)));
     progress[0] = 0;
-    const plan = withLimitHint(task.limits, () => planRecipe(task.parsed, task.limits));
+    const plan = withLimitHint(task.limits, () => planRecipe(task.recipe, task.limits));
     const shouldStop = () => Atomics.load(stop, STOP_INDEX) !== 0;
     // The coarser solves cost a fraction of the main one (a quarter of the points, fewer steps).
     const mainShare = task.errorSolves === 0 ? 1 : 0.8;

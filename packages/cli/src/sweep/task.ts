@@ -7,10 +7,9 @@ export interface RunTask {
   out: string;
   /** the run folder, relative to `out` */
   dir: string;
-  recipe: Record<string, unknown>;
-  /** the same, validated by the main thread (the worker plans it as it is) */
-  parsed: Recipe;
-  /** the recipe as written to the folder's recipe.json */
+  /** the run's recipe, validated by the main thread (the worker plans it as it is) */
+  recipe: Recipe;
+  /** the recipe as the user's input gave it, as written to the folder's recipe.json */
   recipeText: string;
   /** coarser solves for the error bars (0: none; 1: mesh 2h; 2: 2h and 4h) */
   errorSolves: ErrorSolves;
