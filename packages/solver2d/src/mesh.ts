@@ -6,6 +6,8 @@
  * z (depth) is vertex-centred: node 0 lies on the surface, so a predeposition holds the
  * surface node itself at Cs and the junction at the surface is read off node values.
  */
+import { keepLayout } from './layouts.ts';
+
 export interface Mesh {
   widthUm: number;
   depthUm: number;
@@ -151,7 +153,7 @@ function sorted(features: readonly number[]): Float64Array {
 export function gradedAxisCells(length: number, fixed: readonly number[], features: readonly number[], rule: SpacingRule): number {
   const stops = axisStops(length, fixed);
   const near = sorted(features);
-  const spacing = new Spacing(rule);
+  const spacing = keepLayout(new Spacing(rule));
   let cells = 0;
   for (let s = 0; s + 1 < stops.length; s++) {
     cells += cellsFor(spacingIntegral(stops[s], stops[s + 1], near, spacing, samplesFor(stops[s], stops[s + 1], spacing), null));
@@ -163,7 +165,7 @@ export function gradedAxisCells(length: number, fixed: readonly number[], featur
 export function gradedAxis(length: number, fixed: readonly number[], features: readonly number[], rule: SpacingRule): Float64Array {
   const stops = axisStops(length, fixed);
   const near = sorted(features);
-  const spacing = new Spacing(rule);
+  const spacing = keepLayout(new Spacing(rule));
   const out: number[] = [0];
   for (let s = 0; s + 1 < stops.length; s++) gradedInterval(stops[s], stops[s + 1], near, spacing, out);
   return Float64Array.from(out);

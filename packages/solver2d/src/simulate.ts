@@ -4,6 +4,7 @@ import { componentsAt, diffusivityAt, intrinsicDiffusivity, type ComponentDiffus
 import { addImplant } from './implant.ts';
 import { intrinsicCarriersCm3 } from './intrinsic.ts';
 import { integrate, temperatureAt, type Plan, type SpeciesPlan, type StepPlan } from './plan.ts';
+import { keepLayout } from './layouts.ts';
 import { finestX, finestZ } from './mesh.ts';
 import { geometricSteps } from './schedule.ts';
 import { concentrationFromDose, doseFromConcentrationUm } from './units.ts';
@@ -314,7 +315,8 @@ function sourcePeaks(plan: Plan): Record<string, number> {
 
 /** Runs the recipe's steps in order; every species present diffuses during every timed step. */
 export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation {
-  const { mesh, mask, species, steps } = plan;
+  // The plan holds the mesh, mask, species and steps the loops below read.
+  const { mesh, mask, species, steps } = keepLayout(plan, 'plan');
   const cells = mesh.nx * mesh.nz;
   const hFine = Math.min(finestX(mesh), finestZ(mesh));
 
@@ -326,7 +328,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   const clocks = steps.map((st) => {
     if (st.dopant) introduced.add(st.dopant);
     const present = species.filter((s) => introduced.has(s.name));
-    const clock = new StepClock(plan, st, hFine, present, budgetBefore, speedupOf(st, present, peaks));
+    const clock = keepLayout(new StepClock(plan, st, hFine, present, budgetBefore, speedupOf(st, present, peaks)));
     for (const s of present) budgetBefore[s.name] = (budgetBefore[s.name] ?? 0) + (st.budgetUm2[s.name] ?? 0);
     return { clock, count: clock.count() };
   });
@@ -344,7 +346,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
       `about ${time} on one core), above the limit of ${sci(plan.limits.maxPointSteps)}; ` +
       'lower mesh.refine or raise numerics.stepGrowth, or raise the limit');
   }
-  const stepper = new AdiStepper(mesh, mask);
+  const stepper = keepLayout(new AdiStepper(mesh, mask));
   const concentration: Record<string, Float64Array> = {};
   const entered: Record<string, number> = {};
   for (const s of species) {
@@ -352,7 +354,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
     entered[s.name] = 0;
   }
   const nonlinear = species.filter((s) => s.model === 'charged-defect');
-  const coupled = nonlinear.length > 0 ? new CoupledDiffusivity(plan, cells) : null;
+  const coupled = nonlinear.length > 0 ? keepLayout(new CoupledDiffusivity(plan, cells)) : null;
   let done = 0;
   const stepRecords: StepRecord[] = [];
   const present: SpeciesPlan[] = [];
