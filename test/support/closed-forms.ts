@@ -62,6 +62,45 @@ export function filmField(c: FilmCase, x: number, z: number): number {
   return (c.q / (Math.sqrt(Math.PI * c.dt) * 1e-4)) * vertical * lateral;
 }
 
+export interface ImplantCase {
+  /** dose, cm^-2; projected range, straggle and lateral straggle, µm */
+  q: number;
+  rp: number;
+  straggle: number;
+  lateralStraggle: number;
+  /** ∫D dt of the anneal, µm² */
+  dt: number;
+  /** window, µm */
+  x0: number;
+  x1: number;
+  /** cross-section width and depth, µm: zero-flux walls, handled by images */
+  width: number;
+  depth: number;
+}
+
+/**
+ * An implanted Gaussian (dose Q, range Rp, straggle σ; lateral straggle σl at the window
+ * edges) after an anneal of budget Dt with constant D (exact, separable): diffusion
+ * convolves the profile with a Gaussian of variance 2Dt in each direction, so the variances
+ * become σ² + 2Dt and σl² + 2Dt, and the sealed surface is a mirror (an image at −Rp), as
+ * are the walls and the bottom. The part of the as-implanted Gaussian above the surface is
+ * scaled away as the solver does (the dose in silicon is Q); with Rp ≥ 5σ that part is
+ * below 3e-7 of the dose, and the mirrored profile is the mirrored Gaussian to that order.
+ */
+export function implantField(c: ImplantCase, x: number, z: number): number {
+  const s2 = c.straggle ** 2 + 2 * c.dt;
+  const sl = Math.SQRT2 * Math.sqrt(c.lateralStraggle ** 2 + 2 * c.dt);
+  let lateral = 0;
+  for (let n = -2; n <= 2; n++) {
+    const shift = 2 * n * c.width;
+    for (const xs of [x - shift, -x - shift]) lateral += 0.5 * (erf((c.x1 - xs) / sl) - erf((c.x0 - xs) / sl));
+  }
+  const g = (centre: number) => Math.exp(-((z - centre) ** 2) / (2 * s2));
+  const vertical = g(c.rp) + g(-c.rp) + g(2 * c.depth - c.rp) + g(2 * c.depth + c.rp);
+  const inSilicon = 0.5 * (1 + erf(c.rp / (Math.SQRT2 * c.straggle)));
+  return (c.q / (inSilicon * Math.sqrt(2 * Math.PI * s2) * 1e-4)) * vertical * lateral;
+}
+
 /** Root of f on [a, b] by bisection (f(a), f(b) of opposite sign), to `tol`. */
 export function bisect(f: (x: number) => number, a: number, b: number, tol = 1e-12): number {
   let fa = f(a);

@@ -40,3 +40,18 @@ export function filmRecipe(o: CaseOptions & { dose: number; temperatureC: number
     ],
   };
 }
+
+export interface ImplantOptions {
+  doseCm2: number;
+  projectedRangeUm: number;
+  straggleUm: number;
+  lateralStraggleUm: number;
+}
+
+/** An implant of the test dopant through the windows, then the given anneal steps. */
+export function implantRecipe(o: CaseOptions & { implant: ImplantOptions; anneals: Record<string, unknown>[] }) {
+  return {
+    ...caseRecipe(o, 'test: implant then anneal (invented)'),
+    steps: [{ kind: 'implant', dopant: 'Q', ...o.implant }, ...o.anneals.map((a) => ({ kind: 'anneal', ...a }))],
+  };
+}

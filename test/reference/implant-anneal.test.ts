@@ -1,0 +1,61 @@
+import { describe, expect, it } from 'vitest';
+import { arrheniusUm2PerS, bisect, implantField, type ImplantCase } from '../support/closed-forms.ts';
+import { implantRecipe, TEST_DOPANT } from '../support/recipes.ts';
+import { solve } from '../support/solve.ts';
+
+const NB = 1e16;
+const WIDTH = 12;
+const WINDOW: [number, number] = [4, 8];
+// Rp = 5σ: the as-implanted Gaussian is all in the silicon to 3e-7 of its dose (see implantField).
+const IMPLANT = { doseCm2: 1e15, projectedRangeUm: 0.15, straggleUm: 0.03, lateralStraggleUm: 0.03 };
+
+/** ∫D dt over a linear ramp, by the composite Simpson rule on 4000 intervals (independent of the solver's own quadrature). */
+function rampBudget(fromC: number, toC: number, seconds: number): number {
+  const n = 4000;
+  const d = (t: number) => arrheniusUm2PerS(TEST_DOPANT.D0Cm2PerS, TEST_DOPANT.EaEv, fromC + ((toC - fromC) * t) / seconds);
+  let sum = d(0) + d(seconds);
+  for (let k = 1; k < n; k++) sum += (k % 2 === 1 ? 4 : 2) * d((seconds * k) / n);
+  return (sum * seconds) / (3 * n);
+}
+
+function check(anneals: { temperatureC: number | [number, number]; minutes: number }[]) {
+  const run = solve(implantRecipe({ widthUm: WIDTH, windows: [WINDOW], background: NB, implant: IMPLANT, anneals }));
+  const dt = anneals.reduce((sum, a) => sum + (Array.isArray(a.temperatureC)
+    ? rampBudget(a.temperatureC[0], a.temperatureC[1], a.minutes * 60)
+    : arrheniusUm2PerS(TEST_DOPANT.D0Cm2PerS, TEST_DOPANT.EaEv, a.temperatureC) * a.minutes * 60), 0);
+  const exact: ImplantCase = {
+    q: IMPLANT.doseCm2, rp: IMPLANT.projectedRangeUm, straggle: IMPLANT.straggleUm, lateralStraggle: IMPLANT.lateralStraggleUm,
+    dt, x0: WINDOW[0], x1: WINDOW[1], width: WIDTH, depth: run.plan.mesh.depthUm,
+  };
+  const centre = 0.5 * (WINDOW[0] + WINDOW[1]);
+  // The exact junction below the centre, beyond the peak, and at the surface beside the edge.
+  const xj = bisect((z) => implantField(exact, centre, z) - NB, IMPLANT.projectedRangeUm, run.plan.mesh.depthUm);
+  const edge = bisect((x) => implantField(exact, x, 0) - NB, 0, WINDOW[0]);
+  return { run, xj, lateral: WINDOW[0] - edge, dt };
+}
+
+// Closed form: an implanted Gaussian annealed with constant D (implantField: the variances
+// grow by 2Dt, the sealed surface and the walls are mirrors), at the default mesh and steps.
+describe('implant then anneal with constant D, against the exact separable solution', () => {
+  const cases = [
+    ['1000 °C for 30 min', check([{ temperatureC: 1000, minutes: 30 }])],
+    ['a ramp 700 → 1000 °C over 10 min, then 1000 °C for 30 min', check([{ temperatureC: [700, 1000], minutes: 10 }, { temperatureC: 1000, minutes: 30 }])],
+  ] as const;
+  for (const [name, c] of cases) {
+    it(`${name}: junction depth at the centre within 0.3 % of the exact xj`, () => {
+      const w = c.run.report.windows[0];
+      console.log(`implant anneal ${name}: √Dt ${Math.sqrt(c.dt).toFixed(4)} µm, xj ${w.junctionDepthUm!.toFixed(4)} µm vs ${c.xj.toFixed(4)} µm exact ` +
+        `(${((w.junctionDepthUm! / c.xj - 1) * 100).toFixed(3)} %), lateral ${w.lateralLeftUm!.toFixed(4)} vs ${c.lateral.toFixed(4)} µm, ` +
+        `time steps ${c.run.sim.stepRecords.map((s) => s.timeSteps).join(' + ')}`);
+      expect(Math.abs(w.junctionDepthUm! / c.xj - 1)).toBeLessThan(0.003);
+    });
+    it(`${name}: lateral encroachment at the surface within 0.3 % of the exact xj`, () => {
+      const w = c.run.report.windows[0];
+      expect(Math.abs(w.lateralLeftUm! - c.lateral) / c.xj).toBeLessThan(0.003);
+      expect(Math.abs(w.lateralRightUm! - c.lateral) / c.xj).toBeLessThan(0.003);
+    });
+    it(`${name}: dose conserved (1e-9)`, () => {
+      expect(c.run.sim.ledger.Q.relativeImbalance).toBeLessThan(1e-9);
+    });
+  }
+});
