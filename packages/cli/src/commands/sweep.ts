@@ -71,9 +71,16 @@ export async function sweepCommand(args: string[]): Promise<number> {
   const shard = values.shard === undefined ? null : parseShard(values.shard);
   const out = values.out ?? defaultSweepFolder(recipePath);
   if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${out}: is a file, not a folder`);
-  // Every run is built and validated here; nothing is written before this line succeeds.
-  const matrix = buildMatrix(readRecipeFile(recipePath), { widths: values.widths, set: values.set, limits });
-  return runSweep(matrix, { out, jobs, errorSolves, shard, resume: values.resume, quiet: values.quiet, limits });
+  // The workers start now and load the solver while every run is planned below; on bad
+  // input they are stopped before the error is reported.
+  const pool = new WorkerPool(jobs, workerBundle());
+  try {
+    // Every run is built and validated here; nothing is written before this line succeeds.
+    const matrix = buildMatrix(readRecipeFile(recipePath), { widths: values.widths, set: values.set, limits });
+    return await runSweep(matrix, pool, { out, jobs, errorSolves, shard, resume: values.resume, quiet: values.quiet, limits });
+  } finally {
+    await pool.close();
+  }
 }
 
 interface SweepOptions {
@@ -86,12 +93,11 @@ interface SweepOptions {
   limits: PlanLimits;
 }
 
-async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<number> {
+async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOptions): Promise<number> {
   const { out, shard } = options;
   const started = performance.now();
   const mine = matrix.runs.filter((r) => inShard(r.id, shard));
   const stem = sweepStem(shard);
-  const bundle = workerBundle();
   // A run folder that leads outside --out (a symbolic link) is refused before anything is written.
   const folders = new Map(mine.map((r) => [r.id, inside(out, r.dir)]));
   makeFolders(out);
@@ -132,9 +138,9 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
   let abandoning = false;
   const warnings: string[] = [];
   const progress = progressReporter(options.quiet ? null : process.stderr, 'sweep');
-  const pool = toDo.length > 0 ? new WorkerPool(Math.min(options.jobs, toDo.length), bundle) : null;
+  await pool.shrink(Math.min(options.jobs, toDo.length));
   const report = () => progress.update(
-    toDo.length === 0 ? 1 : (finished + (pool?.runningFraction() ?? 0)) / toDo.length,
+    toDo.length === 0 ? 1 : (finished + pool.runningFraction()) / toDo.length,
     `${reused + finished}/${mine.length} runs, ${failed} failed`,
   );
   const say = (line: string) => {
@@ -146,14 +152,14 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
       say('sweep: stopping — no new runs start; the running ones finish (Ctrl-C again to abandon them)');
     } else if (!abandoning) {
       abandoning = true;
-      pool?.abandon();
+      pool.abandon();
       say('sweep: abandoning the running runs');
     }
   };
   const onTerm = () => {
     stopping ??= 'SIGTERM';
     abandoning = true;
-    pool?.abandon();
+    pool.abandon();
   };
   process.on('SIGINT', onInt);
   process.on('SIGTERM', onTerm);
@@ -194,13 +200,13 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
     }
   };
   try {
-    if (pool) await Promise.all(Array.from({ length: pool.size }, () => lane(pool)));
+    await Promise.all(Array.from({ length: pool.size }, () => lane(pool)));
   } finally {
     clearInterval(ticker);
     process.off('SIGINT', onInt);
     process.off('SIGTERM', onTerm);
     progress.done();
-    await pool?.close();
+    await pool.close();
   }
   const written = record();
 
@@ -216,7 +222,7 @@ async function runSweep(matrix: SweepMatrix, options: SweepOptions): Promise<num
     }
     const shardNote = shard ? ` (shard ${shard.index}/${shard.count} of ${matrix.runs.length})` : '';
     process.stderr.write(`sweep: ${ordered.length} runs${shardNote}: ${count('ok')} ok${reused ? ` (${reused} already finished)` : ''}, ${failed} failed, ` +
-      `${count('abandoned')} abandoned, ${count('pending')} not run; ${seconds.toFixed(1)} s with ${pool?.size ?? 0} worker${pool?.size === 1 ? '' : 's'}\n`);
+      `${count('abandoned')} abandoned, ${count('pending')} not run; ${seconds.toFixed(1)} s with ${pool.size} worker${pool.size === 1 ? '' : 's'}\n`);
   }
   if (stopping) {
     process.stderr.write(`sweep: stopped by ${stopping}; run the same command with --resume to finish it\n`);

@@ -38,8 +38,20 @@ export class WorkerPool {
   private abandoned = false;
   private closed = false;
 
-  constructor(readonly size: number, private readonly url: URL) {
-    for (let k = 0; k < size; k++) this.slots.push(this.spawn());
+  constructor(count: number, private readonly url: URL) {
+    for (let k = 0; k < count; k++) this.slots.push(this.spawn());
+  }
+
+  get size(): number {
+    return this.slots.length;
+  }
+
+  /**
+   * Stops the workers beyond the first `count`, before any run is given (a sweep with fewer
+   * runs to do than workers started).
+   */
+  async shrink(count: number): Promise<void> {
+    await Promise.all(this.slots.splice(Math.max(0, count)).map(stopWorker));
   }
 
   private spawn(): Slot {
@@ -113,10 +125,13 @@ export class WorkerPool {
   }
 
   async close(): Promise<void> {
+    if (this.closed) return;
     this.closed = true;
-    await Promise.all(this.slots.map((s) => {
-      s.api[Comlink.releaseProxy]();
-      return s.worker.terminate();
-    }));
+    await Promise.all(this.slots.map(stopWorker));
   }
+}
+
+function stopWorker(s: Slot): Promise<number> {
+  s.api[Comlink.releaseProxy]();
+  return s.worker.terminate();
 }
