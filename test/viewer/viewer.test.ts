@@ -228,7 +228,7 @@ describe('edgewise view on a sweep folder', () => {
     expect(dots.filter((d) => /lateralUm/.test(d.series!))).toHaveLength(WIDTHS.length);
   });
 
-  it('re-runs an edited recipe in a worker with progress, without freezing the page, and the shown xj changes', async () => {
+  it('re-runs an edited recipe in a worker with progress, without freezing the page, with error bars, and the shown xj changes', async () => {
     await page.keyboard.press('Escape'); // back to the grid, whatever the test before left
     const liveXj = async (minutes: number) => {
       const input = page.locator('#panel [data-path="steps[1].minutes"] input');
@@ -252,19 +252,21 @@ describe('edgewise view on a sweep folder', () => {
       await page.waitForSelector('.caption[data-run-id="live"] .xj');
       const xj = await page.$eval('.caption[data-run-id="live"] .xj', (e) => Number((e as HTMLElement).dataset.um));
       const progress = await page.$eval('#progress progress', (e) => (e as HTMLProgressElement).value);
-      return { xj, frames: await frames, progress };
+      const caption = await page.$eval('.caption[data-run-id="live"] .xj', (e) => e.textContent);
+      return { xj, frames: await frames, progress, caption };
     };
     const first = await liveXj(60);
-    // Same recipe as the CLI run of the 8 µm window: the worker's solver2d gives the CLI's xj (source: report.json).
-    const cli = readReport(join(sweepDir, runs.find((r) => r.widthUm === 8)!.dir)).windows[0].junctionDepthUm;
-    expect(first.xj).toBeCloseTo(cli, 5);
+    // Same recipe as the CLI run of the 8 µm window: the worker's solver2d gives the CLI's xj,
+    // and the same error bar from the same two coarser solves (source: report.json).
+    const cli = readReport(join(sweepDir, runs.find((r) => r.widthUm === 8)!.dir)).windows[0];
+    expect(first.xj).toBeCloseTo(cli.junctionDepthUm, 5);
+    expect(first.caption).toBe(`xj ${cli.junctionDepthUm.toFixed(3)} ± ${cli.errors.junctionDepthUm.toFixed(3)} µm`);
     expect(first.progress).toBe(1);
     expect(first.frames).toBeGreaterThan(2);
     const longer = await liveXj(240);
     // Four times the drive-in: xj grows, roughly as the square root of Dt (closed form, erfc/Gaussian profiles).
     expect(longer.xj).toBeGreaterThan(first.xj * 1.3);
-    const caption = await page.$eval('.caption[data-run-id="live"] .xj', (e) => e.textContent);
-    expect(caption).toMatch(new RegExp(`^xj ${longer.xj.toFixed(3)}( ± [0-9.]+)? µm$`));
+    expect(longer.caption).toMatch(new RegExp(`^xj ${longer.xj.toFixed(3)} ± [0-9.]+ µm$`));
     expect((await snapshot(page)).tiles).toHaveLength(WIDTHS.length + 1);
     await shot(page, 'live-rerun');
   });
