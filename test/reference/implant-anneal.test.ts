@@ -59,3 +59,31 @@ describe('implant then anneal with constant D, against the exact separable solut
     });
   }
 });
+
+// The same closed form for two implants in a row, which diffuse independently with constant D
+// (the equation is linear): the field is the sum of the two. The sharper implant comes first,
+// so that the time steps must start from its age, not the second's.
+describe('two implants in a row, then an anneal, against the sum of the exact solutions', () => {
+  const sharp = { doseCm2: 5e14, projectedRangeUm: 0.1, straggleUm: 0.02, lateralStraggleUm: 0.02 };
+  const wide = { doseCm2: 1e14, projectedRangeUm: 0.3, straggleUm: 0.06, lateralStraggleUm: 0.06 };
+  const recipe = implantRecipe({ widthUm: WIDTH, windows: [WINDOW], background: NB, implant: sharp, anneals: [{ temperatureC: 950, minutes: 20 }] });
+  recipe.steps.splice(1, 0, { kind: 'implant', dopant: 'Q', ...wide });
+  const run = solve(recipe);
+  const dt = arrheniusUm2PerS(TEST_DOPANT.D0Cm2PerS, TEST_DOPANT.EaEv, 950) * 20 * 60;
+  const part = (i: typeof sharp): ImplantCase => ({
+    q: i.doseCm2, rp: i.projectedRangeUm, straggle: i.straggleUm, lateralStraggle: i.lateralStraggleUm,
+    dt, x0: WINDOW[0], x1: WINDOW[1], width: WIDTH, depth: run.plan.mesh.depthUm,
+  });
+  const field = (x: number, z: number) => implantField(part(sharp), x, z) + implantField(part(wide), x, z);
+  const centre = 0.5 * (WINDOW[0] + WINDOW[1]);
+  const xj = bisect((z) => field(centre, z) - NB, wide.projectedRangeUm, run.plan.mesh.depthUm);
+  const edge = bisect((x) => field(x, 0) - NB, 0, WINDOW[0]);
+
+  it('junction depth at the centre and lateral encroachment within 0.3 % of the exact xj', () => {
+    const w = run.report.windows[0];
+    console.log(`two implants: xj ${w.junctionDepthUm!.toFixed(4)} µm vs ${xj.toFixed(4)} µm exact (${((w.junctionDepthUm! / xj - 1) * 100).toFixed(3)} %), ` +
+      `lateral ${w.lateralLeftUm!.toFixed(4)} vs ${(WINDOW[0] - edge).toFixed(4)} µm, time steps ${run.sim.stepRecords.map((s) => s.timeSteps).join(' + ')}`);
+    expect(Math.abs(w.junctionDepthUm! / xj - 1)).toBeLessThan(0.003);
+    expect(Math.abs(w.lateralLeftUm! - (WINDOW[0] - edge)) / xj).toBeLessThan(0.003);
+  });
+});

@@ -344,10 +344,13 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   const ages: ProfileAges = { budgetSince: {}, sourceNu: {} };
   const clocks = steps.map((st) => {
     if (st.dopant) {
-      // A new source of a species starts its profile's age again.
-      introduced.add(st.dopant);
+      // A new source of a species starts its profile's age again; where an earlier source
+      // has not diffused since (two implants in a row), the younger of the two sets it.
+      const fresh = st.implant ? Math.min(st.implant.straggleUm, st.implant.lateralStraggleUm) ** 2 / 2 : 0;
+      const undiffused = introduced.has(st.dopant) && ages.budgetSince[st.dopant] === 0;
+      ages.sourceNu[st.dopant] = undiffused ? Math.min(ages.sourceNu[st.dopant], fresh) : fresh;
       ages.budgetSince[st.dopant] = 0;
-      ages.sourceNu[st.dopant] = st.implant ? Math.min(st.implant.straggleUm, st.implant.lateralStraggleUm) ** 2 / 2 : 0;
+      introduced.add(st.dopant);
     }
     const present = species.filter((s) => introduced.has(s.name));
     const clock = keepLayout(new StepClock(plan, st, hFine, present, ages, speedupOf(st, present, peaks)));
