@@ -143,9 +143,9 @@ function growthFor(plan: Plan, speedup: number): number {
  * smaller of depth and lateral) is what diffusion from a point makes in ν = σ²/2, which at a
  * peak that diffuses s times faster than intrinsic is σ²/(2s) of the budget counted here. On
  * the arsenic example with constant D that takes 23 time steps instead of 61, with xj 0.10 %
- * and the lateral reach 0.11 % from the step-converged values (0.01 % before); with the
- * charged-defect model 86 instead of 91, as close as before (test/reference/implant-anneal.test.ts
- * checks it against the exact solution).
+ * and the lateral reach 0.11 % from the step-converged values (0.01 % with the first step at
+ * the mesh's scale); with the charged-defect model 86 instead of 91, as close as before
+ * (test/reference/implant-anneal.test.ts checks it against the exact solution).
  *
  * Where D depends on concentration, the growth follows the peak as it falls: `next` takes
  * the speed-up at the current peak, and each step grows by what that speed-up allows (an
