@@ -342,7 +342,8 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   const peaks = sourcePeaks(plan);
   const introduced = new Set<string>();
   const ages: ProfileAges = { budgetSince: {}, sourceNu: {} };
-  const clocks = steps.map((st) => {
+  // Arrays the time loop reads are pushed, not mapped (see packedMap).
+  const clocks = packedMap(steps, (st) => {
     if (st.dopant) {
       // A new source of a species starts its profile's age again; where an earlier source
       // has not diffused since (two implants in a row), the younger of the two sets it.
@@ -423,7 +424,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
       }
       // A concentration-dependent D can feed Peaceman–Rachford's undamped stiff modes (see
       // DAMPED_STEPS): where the field has begun to ring, the next steps are split implicit.
-      const budgets = present.map((s) => componentBudgets(st, s, t0, t1));
+      const budgets = packedMap(present, (s) => componentBudgets(st, s, t0, t1));
       if (coupled && coupled.prepare(concentration, present, budgets, midC, previousDt > 0 ? dt / (2 * previousDt) : 0)) damped = DAMPED_STEPS;
       const scheme = timeStep.implicit || damped > 0 ? 'split-implicit' : 'peaceman-rachford';
       if (damped > 0) damped--;
@@ -459,6 +460,17 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
     };
   }
   return { plan, concentration, ledger, stepRecords };
+}
+
+/**
+ * `items.map(f)`, built by push. An array that Array.prototype.map makes in optimised code
+ * has holey elements, one made by the interpreter packed ones: code compiled on the one
+ * meets the other with a "wrong map" and is thrown away (simulate, once per sweep worker).
+ */
+function packedMap<T, U>(items: readonly T[], f: (item: T) => U): U[] {
+  const out: U[] = [];
+  for (const item of items) out.push(f(item));
+  return out;
 }
 
 /** ∫ of each charge-state term of D over [t0, t1] within a step, µm². */
