@@ -145,7 +145,7 @@ function growthFor(plan: Plan, speedup: number): number {
  * the arsenic example with constant D that takes 23 time steps instead of 61, with xj 0.10 %
  * and the lateral reach 0.11 % from the step-converged values (0.01 % with the first step at
  * the mesh's scale); with the charged-defect model 86 instead of 91, as close as before
- * (test/reference/implant-anneal.test.ts checks it against the exact solution).
+ * (test/reference/anneal-after-sources.test.ts checks it against the exact solution).
  *
  * Where D depends on concentration, the growth follows the peak as it falls: `next` takes
  * the speed-up at the current peak, and each step grows by what that speed-up allows (an

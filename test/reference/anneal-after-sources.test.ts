@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { arrheniusUm2PerS, bisect, implantField, type ImplantCase } from '../support/closed-forms.ts';
-import { implantRecipe, TEST_DOPANT } from '../support/recipes.ts';
+import { arrheniusUm2PerS, bisect, filmField, implantField, type FilmCase, type ImplantCase } from '../support/closed-forms.ts';
+import { filmRecipe, implantRecipe, TEST_DOPANT } from '../support/recipes.ts';
 import { solve } from '../support/solve.ts';
 
 const NB = 1e16;
@@ -85,5 +85,31 @@ describe('two implants in a row, then an anneal, against the sum of the exact so
       `lateral ${w.lateralLeftUm!.toFixed(4)} vs ${(WINDOW[0] - edge).toFixed(4)} µm, time steps ${run.sim.stepRecords.map((s) => s.timeSteps).join(' + ')}`);
     expect(Math.abs(w.junctionDepthUm! / xj - 1)).toBeLessThan(0.003);
     expect(Math.abs(w.lateralLeftUm! - (WINDOW[0] - edge)) / xj).toBeLessThan(0.003);
+  });
+});
+
+// A second layer of the same dopant after a drive-in is a new discontinuity: its drive-in must
+// start from the mesh's scale again, not from the age of the first layer. Closed form: the two
+// fixed-dose layers diffuse independently with constant D (filmField, REFERENCES.md), the
+// first for both drive-ins, the second for the last one, which sets the junction.
+describe('a layer, a drive-in, a second layer, a drive-in, against the sum of the exact solutions', () => {
+  const recipe = filmRecipe({ widthUm: WIDTH, windows: [WINDOW], background: NB, dose: 2e13, temperatureC: 1100, minutes: 60 });
+  recipe.steps.push({ kind: 'film', dopant: 'Q', doseCm2: 1e15 }, { kind: 'drive-in', temperatureC: 1050, minutes: 30 });
+  const run = solve(recipe);
+  const d = (t: number) => arrheniusUm2PerS(TEST_DOPANT.D0Cm2PerS, TEST_DOPANT.EaEv, t);
+  const layer = (q: number, dt: number): FilmCase => ({ q, dt, x0: WINDOW[0], x1: WINDOW[1], width: WIDTH, depth: run.plan.mesh.depthUm });
+  const first = layer(2e13, d(1100) * 3600 + d(1050) * 1800);
+  const second = layer(1e15, d(1050) * 1800);
+  const field = (x: number, z: number) => filmField(first, x, z) + filmField(second, x, z);
+  const centre = 0.5 * (WINDOW[0] + WINDOW[1]);
+  const xj = bisect((z) => field(centre, z) - NB, 0, run.plan.mesh.depthUm);
+
+  it('junction depth within 0.5 % of the exact xj and surface value within 0.5 %, the second drive-in starting small', () => {
+    const w = run.report.windows[0];
+    console.log(`two layers: xj ${w.junctionDepthUm!.toFixed(4)} µm vs ${xj.toFixed(4)} µm exact (${((w.junctionDepthUm! / xj - 1) * 100).toFixed(3)} %), ` +
+      `surface ${w.surfaceConcentrationCm3.toExponential(4)} vs ${field(centre, 0).toExponential(4)} cm^-3, ` +
+      `time steps ${run.sim.stepRecords.map((s) => s.timeSteps).join(' + ')}`);
+    expect(Math.abs(w.junctionDepthUm! / xj - 1)).toBeLessThan(0.005);
+    expect(Math.abs(w.surfaceConcentrationCm3 / field(centre, 0) - 1)).toBeLessThan(0.005);
   });
 });
