@@ -1,3 +1,4 @@
+import { PRIMING_CALLS } from './adi.ts';
 import type { Mesh } from './mesh.ts';
 
 /**
@@ -64,6 +65,7 @@ function zeroBetween(p: number, q: number, a: number, b: number): number {
  * Saddle cells are resolved by the mean of the four corners.
  */
 export function zeroContours(grid: NodeGrid): Polyline[] {
+  primeScan();
   const { xs, zs, values, nx, nz } = grid;
   // Edge ids: horizontal edge from node (i, j) to (i+1, j) is 2·(j·nx+i); vertical to (i, j+1) is +1.
   const point = new Map<number, Point>();
@@ -143,10 +145,29 @@ export function zeroContours(grid: NodeGrid): Polyline[] {
  * 8 bottom-left). The scan over every cell is a function of its own: inside zeroContours,
  * with the linking closures inlined into it, it took a recompilation of the whole at most
  * calls of a sweep's worker thread. Kept in doubles, exact for any mesh the limits allow.
+ * The result is a view of a buffer kept between calls (valid until the next call), large
+ * enough for most contours and grown, rarely, for larger ones: starting from 64 cells on
+ * every call, the compiled scan met its growth path anew and was thrown away up to 9 times a
+ * sweep worker.
  */
+let cellBuffer = new Float64Array(1 << 14);
+let primed = false;
+
+/**
+ * Runs crossingCells PRIMING_CALLS times on a 3 × 3 grid, once per thread, so that the code
+ * after its loop has type feedback before the loop is compiled mid-call (see PRIMING_CALLS in
+ * adi.ts; without it the compiled scan was thrown away at its return, twice a sweep worker).
+ */
+function primeScan(): void {
+  if (primed) return;
+  primed = true;
+  const values = Float64Array.of(1, 1, -1, 1, -1, -1, -1, -1, -1);
+  for (let r = 0; r < PRIMING_CALLS; r++) crossingCells(values, 3, 3);
+}
+
 function crossingCells(values: Float64Array, nx: number, nz: number): Float64Array {
   let count = 0;
-  let out = new Float64Array(64);
+  let out = cellBuffer;
   for (let j = 0; j + 1 < nz; j++) {
     for (let i = 0; i + 1 < nx; i++) {
       const n0 = j * nx + i;
@@ -156,6 +177,7 @@ function crossingCells(values: Float64Array, nx: number, nz: number): Float64Arr
         const grown = new Float64Array(2 * count);
         grown.set(out);
         out = grown;
+        cellBuffer = grown;
       }
       out[count++] = 16 * n0 + code;
     }
