@@ -139,17 +139,7 @@ export function zeroContours(grid: NodeGrid): Polyline[] {
   return lines;
 }
 
-/**
- * The cells the zero contour crosses, in row order, each as 16·(index of its top-left node)
- * + its marching-squares code (bit 1 top-left above zero, 2 top-right, 4 bottom-right,
- * 8 bottom-left). The scan over every cell is a function of its own: inside zeroContours,
- * with the linking closures inlined into it, it took a recompilation of the whole at most
- * calls of a sweep's worker thread. Kept in doubles, exact for any mesh the limits allow.
- * The result is a view of a buffer kept between calls (valid until the next call), large
- * enough for most contours and grown, rarely, for larger ones: starting from 64 cells on
- * every call, the compiled scan met its growth path anew and was thrown away up to 9 times a
- * sweep worker.
- */
+/** crossingCells' output, kept between calls (see there). */
 let cellBuffer = new Float64Array(1 << 14);
 let primed = false;
 
@@ -165,6 +155,17 @@ function primeScan(): void {
   for (let r = 0; r < PRIMING_CALLS; r++) crossingCells(values, 3, 3);
 }
 
+/**
+ * The cells the zero contour crosses, in row order, each as 16·(index of its top-left node)
+ * + its marching-squares code (bit 1 top-left above zero, 2 top-right, 4 bottom-right,
+ * 8 bottom-left). The scan over every cell is a function of its own: inside zeroContours,
+ * with the linking closures inlined into it, it took a recompilation of the whole at most
+ * calls of a sweep's worker thread. Kept in doubles, exact for any mesh the limits allow.
+ * The result is a view of a buffer kept between calls (valid until the next call), large
+ * enough for most contours and grown, rarely, for larger ones: starting from 64 cells on
+ * every call, the compiled scan met its growth path anew and was thrown away up to 9 times a
+ * sweep worker.
+ */
 function crossingCells(values: Float64Array, nx: number, nz: number): Float64Array {
   let count = 0;
   let out = cellBuffer;
