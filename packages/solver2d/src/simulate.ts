@@ -142,9 +142,9 @@ function growthFor(plan: Plan, speedup: number): number {
  * the start. An implant gives its profile an age of its own: a Gaussian of straggle σ (the
  * smaller of depth and lateral) is what diffusion from a point makes in ν = σ²/2, which at a
  * peak that diffuses s times faster than intrinsic is σ²/(2s) of the budget counted here. On
- * the arsenic example with constant D that takes 23 time steps instead of 61, with xj 0.10 %
- * and the lateral reach 0.11 % from the step-converged values (0.01 % with the first step at
- * the mesh's scale); with the charged-defect model 86 instead of 91, as close as before
+ * the arsenic example with constant D that takes 23 time steps instead of 61, with xj and the
+ * lateral reach 0.04 % from the step-converged values (0.01 % with the first step at the
+ * mesh's scale); with the charged-defect model 86 instead of 91, as close as before
  * (test/reference/anneal-after-sources.test.ts checks it against the exact solution).
  *
  * Where D depends on concentration, the growth follows the peak as it falls: `next` takes
