@@ -140,7 +140,6 @@ export function analyze(sim: Simulation): Analysis {
   const doseCm2: Record<string, number> = {};
   for (const s of plan.species) doseCm2[s.name] = rounded(sim.ledger[s.name].inSiliconCm2);
 
-
   const results = engineeringResults(sim, field, grid);
   const report: Report = {
     schema: REPORT_SCHEMA_ID,

@@ -1,5 +1,5 @@
-import { analyze, type Report } from './analyze.ts';
-import { DEFAULT_STEP_GROWTH, planRecipe, type PlanLimits } from './plan.ts';
+import { analyze, type Analysis, type Report } from './analyze.ts';
+import { DEFAULT_STEP_GROWTH, planRecipe, type Plan, type PlanLimits } from './plan.ts';
 import type { Recipe } from './recipe.ts';
 import { simulate, type SimulateOptions } from './simulate.ts';
 
@@ -153,4 +153,34 @@ export function coarseReports(recipe: Recipe, options: ErrorSolveOptions = {}): 
     out.push(analyze(simulate(planRecipe(coarsenedRecipe(recipe, level), options.limits), options)).report);
   }
   return out;
+}
+
+/**
+ * Share of the whole job that the main solve takes in `solveWithErrorBars`' progress: the
+ * coarser solves cost a fraction of it (a quarter of the points and fewer steps each).
+ */
+const MAIN_SOLVE_SHARE = 0.8;
+
+export interface SolveWithErrorBarsOptions {
+  /** coarser solves: 0 (no error bars), 1 (2h) or 2 (2h and 4h) */
+  levels: 0 | 1 | 2;
+  limits?: PlanLimits;
+  shouldStop?: () => boolean;
+  /** the fraction of the whole job done, main solve and coarser ones together */
+  onFraction?: (fraction: number) => void;
+}
+
+/** The plan solved and analysed, its report carrying the error bars of `levels` coarser solves. */
+export function solveWithErrorBars(plan: Plan, options: SolveWithErrorBarsOptions): Analysis {
+  const { levels, limits, shouldStop, onFraction } = options;
+  const mainShare = levels === 0 ? 1 : MAIN_SOLVE_SHARE;
+  const analysis = analyze(simulate(plan, { shouldStop, onProgress: (p) => onFraction?.(mainShare * (p.done / p.total)) }));
+  if (levels === 0) return analysis;
+  let level = 1;
+  const reports = coarseReports(plan.recipe, {
+    levels, limits, shouldStop, onLevel: (l) => (level = l),
+    onProgress: (p) => onFraction?.(mainShare + (1 - mainShare) * ((level - 1 + p.done / p.total) / levels)),
+  });
+  analysis.report = withErrorBars([analysis.report, ...reports], plan.recipe);
+  return analysis;
 }

@@ -190,7 +190,7 @@ class StepClock {
     this.total = total;
     const growth = growthFor(plan, speedup);
     let first = (FIRST_STEP_MESH_NUMBER * hFine * hFine) / speedup;
-    if (st.kind === 'drive-in' || st.kind === 'anneal') {
+    if (isSealed(st)) {
       const inBudget = present.map((s) => ((ages.budgetSince[s.name] + ages.sourceNu[s.name] / speedup) * total) / Math.max(st.budgetUm2[s.name] ?? 0, 1e-300));
       first = Math.max(first, (growth - 1) * Math.min(...inBudget));
     }
@@ -281,6 +281,11 @@ class StepClock {
   }
 }
 
+/** A drive-in or anneal: no dopant enters and the surface is sealed. */
+function isSealed(st: StepPlan): boolean {
+  return st.kind === 'drive-in' || st.kind === 'anneal';
+}
+
 /**
  * Each species' profile age (see StepClock), as a step begins: the intrinsic thermal budget
  * since its latest source (µm²), and the age that source gave it in ν (µm²: an implant's
@@ -360,10 +365,9 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
       introduced.add(st.dopant);
     }
     const present = species.filter((s) => introduced.has(s.name));
-    const sealed = st.kind === 'drive-in' || st.kind === 'anneal';
-    const clock = keepLayout(new StepClock(plan, st, hFine, present, ages, speedupOf(st, present, peaks), afterSealed && sealed && !st.dopant));
-    if (st.dopant) afterSealed = false;
-    else if (st.seconds > 0) afterSealed = sealed;
+    const clock = keepLayout(new StepClock(plan, st, hFine, present, ages, speedupOf(st, present, peaks), afterSealed && isSealed(st)));
+    // A source step (none is sealed) ends the run of sealed steps even when it takes no time.
+    if (st.dopant || st.seconds > 0) afterSealed = isSealed(st);
     for (const s of present) ages.budgetSince[s.name] += st.budgetUm2[s.name] ?? 0;
     return { clock, count: clock.count() };
   });
