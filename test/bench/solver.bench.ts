@@ -80,32 +80,87 @@ console.log('nonlinear profile (the deeper one); CPU time, best of 8 runs taken 
     const t = process.cpuUsage(t0);
     return (t.user + t.system) / 1000;
   };
+  const equalReach: string[] = [];
   for (const [name, recipe] of cases) {
     // One model for every species: the recipe's own per-species choices are set aside.
     const { nonlinear: nonlinearPlan, linear: linearPlan } = modelPlans(recipe);
+    const { plan: reachPlan, factor } = equalReachPlan(recipe, nonlinearPlan);
     let lin = Infinity;
     let non = Infinity;
+    let far = Infinity;
     // Each pair's own ratio too: the machine's speed drifts from second to second, and the two
     // bests can come from different moments; the median of the pairs is the steadier figure.
     const pairs: number[] = [];
+    const farPairs: number[] = [];
     for (let r = 0; r < 8; r++) {
       const l = cpuMs(() => simulate(linearPlan));
       const n = cpuMs(() => simulate(nonlinearPlan));
+      const f = cpuMs(() => simulate(reachPlan));
       lin = Math.min(lin, l);
       non = Math.min(non, n);
+      far = Math.min(far, f);
       pairs.push(n / l);
+      farPairs.push(n / f);
     }
-    pairs.sort((a, b) => a - b);
-    const median = 0.5 * (pairs[3] + pairs[4]);
-    const steps = (plan: typeof linearPlan) => simulate(plan).stepRecords.reduce((n, s) => n + s.timeSteps, 0);
+    const median = medianOf(pairs);
     const points = nonlinearPlan.mesh.nx * nonlinearPlan.mesh.nz;
-    const ls = steps(linearPlan);
-    const ns = steps(nonlinearPlan);
+    const ls = stepsOf(linearPlan);
+    const ns = stepsOf(nonlinearPlan);
+    const fs = stepsOf(reachPlan);
     console.log(`  ${name.padEnd(36)} ${nonlinearPlan.mesh.nx} × ${nonlinearPlan.mesh.nz}: linear ${lin.toFixed(1)} ms (${ls} steps), ` +
       `nonlinear ${non.toFixed(1)} ms (${ns} steps): ${(non / lin).toFixed(2)}× the time (median of pairs ${median.toFixed(2)}×), ` +
       `${((non / ns) / (lin / ls)).toFixed(2)}× a step` +
       `  [${((non * 1e6) / (ns * points)).toFixed(1)} vs ${((lin * 1e6) / (ls * points)).toFixed(1)} ns/point/step]`);
+    equalReach.push(`  ${name.padEnd(36)} durations × ${factor.toPrecision(3).padEnd(5)}: linear ${far.toFixed(1)} ms (${fs} steps), ` +
+      `nonlinear ${(non / far).toFixed(2)}× the time (median of pairs ${medianOf(farPairs).toFixed(2)}×)`);
   }
+  console.log('\nThe same against a linear case of equal reach: intrinsic, on the same mesh, with every step\'s duration');
+  console.log('stretched by the factor that brings its junction depth at the first window to the nonlinear one (0.1 %)');
+  for (const line of equalReach) console.log(line);
+}
+
+function medianOf(values: number[]): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  const h = sorted.length >> 1;
+  return sorted.length % 2 === 1 ? sorted[h] : 0.5 * (sorted[h - 1] + sorted[h]);
+}
+
+function stepsOf(plan: Parameters<typeof simulate>[0]): number {
+  return simulate(plan).stepRecords.reduce((n, s) => n + s.timeSteps, 0);
+}
+
+function firstDepth(plan: Parameters<typeof simulate>[0]): number {
+  const xj = analyze(simulate(plan)).report.windows[0].junctionDepthUm;
+  if (xj === null || xj === undefined) throw new Error("no junction at the first window");
+  return xj;
+}
+
+/**
+ * The recipe with the intrinsic model and every step's minutes × k, on the nonlinear plan's mesh
+ * and mask, for the k (bisected in log k) at which its first junction depth is the nonlinear one.
+ * At a fixed temperature or along a ramp, stretching time scales every step's ∫D dt by k.
+ */
+function equalReachPlan(recipe: unknown, nonlinear: Parameters<typeof simulate>[0]) {
+  const target = firstDepth(nonlinear);
+  const base = recipe as { steps: Record<string, unknown>[]; diffusion?: object };
+  const planFor = (k: number) => {
+    const steps = base.steps.map((st) => (typeof st.minutes === 'number' ? { ...st, minutes: st.minutes * k } : st));
+    const parsed = parseRecipe({ ...base, steps, diffusion: { ...(base.diffusion ?? {}), model: 'intrinsic', species: undefined } });
+    return { ...planRecipe(parsed), mesh: nonlinear.mesh, mask: nonlinear.mask };
+  };
+  let low = 1;
+  let high = 1;
+  while (firstDepth(planFor(low)) > target) low /= 2;
+  while (firstDepth(planFor(high)) < target) high *= 2;
+  let k = Math.sqrt(low * high);
+  for (let r = 0; r < 40 && high / low > 1.0005; r++) {
+    k = Math.sqrt(low * high);
+    const xj = firstDepth(planFor(k));
+    if (Math.abs(xj - target) <= 1e-3 * target) break;
+    if (xj < target) low = k;
+    else high = k;
+  }
+  return { plan: planFor(k), factor: k };
 }
 
 const dir = mkdtempSync(join(tmpdir(), 'edgewise-bench-'));
