@@ -72,6 +72,45 @@ describe('edgewise run: error bars and exports', () => {
   });
 });
 
+describe('edgewise run: a window with a layer stack', () => {
+  // A boron base then an arsenic emitter in n-type silicon (invented scenario), half the default mesh density.
+  const stackPath = join(dir, 'stack.json');
+  writeFileSync(stackPath, JSON.stringify({
+    schema: 'edgewise.recipe/1',
+    title: 'test: base and emitter (invented)',
+    substrate: { dopant: 'P', concentrationCm3: 1e16 },
+    crossSection: { widthUm: 10 },
+    mask: { windows: [[2, 8]] },
+    mesh: { refine: 0.5 },
+    steps: [
+      { kind: 'implant', dopant: 'B', doseCm2: 2e13, projectedRangeUm: 0.1, straggleUm: 0.04 },
+      { kind: 'drive-in', temperatureC: 1050, minutes: 60 },
+      { kind: 'implant', dopant: 'As', doseCm2: 5e15, projectedRangeUm: 0.04, straggleUm: 0.015 },
+      { kind: 'anneal', temperatureC: 950, minutes: 20 },
+    ],
+  }));
+  const out = join(dir, 'stack');
+  const result = edgewise(['run', stackPath, '--out', out]);
+  const report = JSON.parse(readFileSync(join(out, 'report.json'), 'utf8'));
+
+  it('prints a row per layer: emitter and pinched base, each with its sheet resistance, error bar and mobility fit', () => {
+    expect(result.code, result.stderr).toBe(0);
+    expect(result.stdout).toMatch(/window +layer +type +top µm +bottom µm +Rs Ω\/sq +mobility fit/);
+    expect(result.stdout).toMatch(/\n1 +1 +n +0\.000 +\d\.\d+ +[\d.]+ ± [\d.]+ +arsenic\n/);
+    expect(result.stdout).toMatch(/\n1 +2 +p +\d\.\d+ +\d\.\d+ +[\d.]+ ± [\d.]+ +boron\n/);
+  });
+
+  it('report.json carries the stack with error bars, and the emitter\'s resistances', () => {
+    expect(() => reportSchema.parse(report)).not.toThrow();
+    const w = report.windows[0];
+    expect(w.layerStack.map((l: { type: string }) => l.type)).toEqual(['n', 'p']);
+    for (const l of w.layerStack) expect(l.errors.sheetResistanceOhmSq).toBeGreaterThan(0);
+    expect(w.sheetResistanceOhmSq).toBe(w.layerStack[0].sheetResistanceOhmSq);
+    expect(w.lineResistanceOhmPerUm).toBeGreaterThan(0);
+    expect(report.mobility.fit).toBe('arsenic');
+  });
+});
+
 describe('edgewise schema report', () => {
   it('prints the JSON Schema of report.json, strict about keys', () => {
     const r = edgewise(['schema', 'report']);

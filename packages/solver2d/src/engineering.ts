@@ -1,10 +1,10 @@
 import { edgeCurvature } from './curvature.ts';
 import type { ErrorBars, ErrorEstimateSummary, WindowErrorKey } from './error-estimate.ts';
 import type { Field } from './field.ts';
-import { columnAt, surfaceCrossing, wallPaddedGrid, zeroContours, type NodeGrid } from './junction.ts';
+import { columnAt, crossings, surfaceCrossing, surfaceValueAt, wallPaddedGrid, zeroContours, type NodeGrid } from './junction.ts';
 import { fitForDopant, type Carrier, type MobilityFit } from './mobility.ts';
-import { invertedNodes, labelRegions, surfaceRegionAt } from './region.ts';
-import { effectiveWidthUm, lineResistanceOhmPerUm, regionConductance, sheetConductanceS } from './resistance.ts';
+import { invertedNodes, labelRegions, reachesBottom, surfaceRegionAt, type Regions } from './region.ts';
+import { effectiveWidthUm, layerConductanceS, lineResistanceOhmPerUm, regionConductance } from './resistance.ts';
 import type { Simulation } from './simulate.ts';
 import { contourEndingAt, neighbourPairs, pairSpacing, type PairSpacing } from './spacing.ts';
 
@@ -13,8 +13,22 @@ import { contourEndingAt, neighbourPairs, pairSpacing, type PairSpacing } from '
  * neighbouring windows: sheet and line resistance, effective width, edge curvature, spacing.
  * Each is computed in its own module; this one only gathers them for the report.
  */
+/** One layer of the column below a window centre, between two junctions or the surface and a junction. */
+export interface LayerResult {
+  /** n or p: the sign of the net doping */
+  type: 'n' | 'p';
+  /** from the surface or a junction down to the next junction, µm */
+  topUm: number;
+  bottomUm: number;
+  /** sheet resistance of the layer alone (a buried layer's is its pinched value), Ω/sq */
+  sheetResistanceOhmSq: number | null;
+  /** the mobility fit for the layer's majority carriers (see mobility.ts) */
+  mobilityFit: string;
+  errors?: { sheetResistanceOhmSq?: number | null };
+}
+
 export interface WindowResults {
-  /** sheet resistance of the layer below the window centre, surface to junction, Ω/sq */
+  /** sheet resistance of the surface layer below the window centre, surface to junction, Ω/sq */
   sheetResistanceOhmSq?: number | null;
   /** resistance per µm of a long line of this window's drawn width, from the whole diffused region, Ω/µm */
   lineResistanceOhmPerUm?: number | null;
@@ -25,6 +39,8 @@ export interface WindowResults {
   /** radius of curvature of the junction where it turns under the left and right mask edge, µm */
   curvatureRadiusLeftUm?: number | null;
   curvatureRadiusRightUm?: number | null;
+  /** every layer below the window centre that a junction bounds, from the surface down */
+  layerStack?: LayerResult[];
   /** numerical error of each of the fields above, in the same unit (see Report.errorEstimate) */
   errors?: ErrorBars<WindowErrorKey>;
 }
@@ -46,14 +62,56 @@ function rounded(v: number | null, digits = 6): number | null {
   return v === null || !Number.isFinite(v) ? null : Number(v.toPrecision(digits));
 }
 
-/** The fit for the diffused layer: its carriers are those of the species opposite to the substrate with the most dose. */
-function layerFit(sim: Simulation): MobilityFit {
-  const { plan } = sim;
-  const carrier: Carrier = plan.substrate.type === 'donor' ? 'hole' : 'electron';
+/**
+ * The fit for a layer of type `sign` (+1 n, −1 p): its carriers' own, for the species of that
+ * type with the most dose in the layer down the column (the substrate dopant where no
+ * diffused species of that type is there).
+ */
+function layerFit(sim: Simulation, species: Record<string, Float64Array>, z: Float64Array, topUm: number, bottomUm: number, sign: number): MobilityFit {
+  const carrier: Carrier = sign > 0 ? 'electron' : 'hole';
+  const wanted = sign > 0 ? 'donor' : 'acceptor';
+  const { substrate } = sim.plan;
+  let majority = substrate.type === wanted ? substrate.dopant : '';
+  let most = substrate.type === wanted ? substrate.concentrationCm3 * (bottomUm - topUm) : 0;
+  for (const s of sim.plan.species) {
+    if (s.type !== wanted) continue;
+    const dose = layerDose(species[s.name], z, topUm, bottomUm);
+    if (dose > most) {
+      most = dose;
+      majority = s.name;
+    }
+  }
+  return fitForDopant(majority, carrier);
+}
+
+/** ∫C dz over [topUm, bottomUm] of a column, by the trapezoidal rule on the nodes and the two ends. */
+function layerDose(c: Float64Array, z: Float64Array, topUm: number, bottomUm: number): number {
+  const at = (depth: number) => {
+    let j = 1;
+    while (j + 1 < z.length && z[j] < depth) j++;
+    const t = Math.min(1, Math.max(0, (depth - z[j - 1]) / (z[j] - z[j - 1])));
+    return (1 - t) * c[j - 1] + t * c[j];
+  };
+  let sum = 0;
+  let prevZ = topUm;
+  let prev = at(topUm);
+  for (let j = 0; j < z.length; j++) {
+    if (z[j] <= topUm) continue;
+    if (z[j] >= bottomUm) break;
+    sum += 0.5 * (prev + c[j]) * (z[j] - prevZ);
+    prevZ = z[j];
+    prev = c[j];
+  }
+  return sum + 0.5 * (prev + at(bottomUm)) * (bottomUm - prevZ);
+}
+
+/** The fit reported for the whole run before any window has a layer: the carriers of the type opposite to the substrate. */
+function substrateOppositeFit(sim: Simulation): MobilityFit {
+  const carrier: Carrier = sim.plan.substrate.type === 'donor' ? 'hole' : 'electron';
   const wanted = carrier === 'hole' ? 'acceptor' : 'donor';
   let majority = '';
   let most = -Infinity;
-  for (const s of plan.species) {
+  for (const s of sim.plan.species) {
     const dose = sim.ledger[s.name]?.inSiliconCm2 ?? 0;
     if (s.type === wanted && dose > most) {
       most = dose;
@@ -63,34 +121,67 @@ function layerFit(sim: Simulation): MobilityFit {
   return fitForDopant(majority, carrier);
 }
 
+function noResults(): WindowResults {
+  return {
+    sheetResistanceOhmSq: null, lineResistanceOhmPerUm: null, effectiveWidthUm: null, drawnPlusLateralUm: null,
+    curvatureRadiusLeftUm: null, curvatureRadiusRightUm: null, layerStack: [],
+  };
+}
+
 export function engineeringResults(sim: Simulation, field: Field, grid: NodeGrid): EngineeringResults {
   const { mesh } = field;
   const windows = sim.plan.mask.windows;
-  const fit = layerFit(sim);
-  const regions = labelRegions(invertedNodes(field.donors, field.acceptors, sim.plan.substrate.type), mesh.nx, mesh.nz);
+  const inverted = invertedNodes(field.donors, field.acceptors, sim.plan.substrate.type);
+  const regions = labelRegions(inverted, mesh.nx, mesh.nz);
+  // The regions of the substrate's type, for a surface layer of that type (an emitter or a
+  // source/drain in a well): labelled only when some window needs them.
+  let substrateType: Regions | null = null;
+  const substrateTypeRegions = () => {
+    if (substrateType === null) {
+      const same = new Uint8Array(inverted.length);
+      for (let k = 0; k < same.length; k++) same[k] = 1 - inverted[k];
+      substrateType = labelRegions(same, mesh.nx, mesh.nz);
+    }
+    return substrateType;
+  };
+  let grids: Record<string, NodeGrid> | null = null;
+  const speciesGrids = () => (grids ??= Object.fromEntries(sim.plan.species.map((s) => [s.name, wallPaddedGrid(mesh, sim.concentration[s.name])])));
   const contours = zeroContours(grid);
   const donorGrid = wallPaddedGrid(mesh, field.donors);
   const acceptorGrid = wallPaddedGrid(mesh, field.acceptors);
   const donorColumn = new Float64Array(mesh.nz);
   const acceptorColumn = new Float64Array(mesh.nz);
   const indicatorColumn = new Float64Array(mesh.nz);
+  let topFit: MobilityFit | null = null;
 
   const perWindow = windows.map(([x0, x1]): WindowResults => {
     const centre = 0.5 * (x0 + x1);
-    const label = surfaceRegionAt(regions, mesh, centre);
     const column = columnAt(grid, centre, indicatorColumn);
-    if (label === 0 || !(column[0] > 0)) {
-      return { sheetResistanceOhmSq: null, lineResistanceOhmPerUm: null, effectiveWidthUm: null, drawnPlusLateralUm: null, curvatureRadiusLeftUm: null, curvatureRadiusRightUm: null };
-    }
-    let depth = mesh.depthUm;
-    for (let j = 0; j + 1 < mesh.nz; j++) {
-      if (column[j] > 0 && !(column[j + 1] > 0)) {
-        depth = mesh.z[j] + (mesh.z[j + 1] - mesh.z[j]) * (column[j] / (column[j] - column[j + 1]));
-        break;
-      }
-    }
-    const sheet = sheetConductanceS(columnAt(donorGrid, centre, donorColumn), columnAt(acceptorGrid, centre, acceptorColumn), mesh.z, depth, fit);
-    const area = regionConductance(mesh, field.donors, field.acceptors, regions, label, fit);
+    const depths = crossings(column, mesh.z);
+    const surfaceInverted = column[0] > 0;
+    // A layer of the substrate's type at the surface is a layer of its own only where a
+    // junction lies below it; one of the other type with none reaches the bottom (warned).
+    if (!surfaceInverted && depths.length === 0) return noResults();
+    if (depths.length === 0) depths.push(mesh.depthUm);
+    const regionSet = surfaceInverted ? regions : substrateTypeRegions();
+    const label = surfaceRegionAt(regionSet, mesh, centre);
+    if (label === 0 || !(column[0] !== 0)) return noResults();
+    const donors = columnAt(donorGrid, centre, donorColumn);
+    const acceptors = columnAt(acceptorGrid, centre, acceptorColumn);
+    const species = Object.fromEntries(sim.plan.species.map((s) => [s.name, columnAt(speciesGrids()[s.name], centre, new Float64Array(mesh.nz))]));
+    const surfaceSign = Math.sign(donors[0] - acceptors[0]);
+    const layers = depths.map((bottom, k) => {
+      const top = k === 0 ? 0 : depths[k - 1];
+      const sign = k % 2 === 0 ? surfaceSign : -surfaceSign;
+      const fit = layerFit(sim, species, mesh.z, top, bottom, sign);
+      return { top, bottom, sign, fit, conductance: layerConductanceS(donors, acceptors, mesh.z, top, bottom, sign, fit) };
+    });
+    const surface = layers[0];
+    topFit ??= surface.fit;
+    const sheet = surface.conductance;
+    // A surface layer joined to the substrate beside the centre is no line of its own.
+    const isolated = surfaceInverted || !reachesBottom(regionSet, label, mesh.nx, mesh.nz);
+    const area = isolated ? regionConductance(mesh, field.donors, field.acceptors, regionSet, label, surface.fit) : NaN;
     const left = surfaceCrossing(grid, centre, -1);
     const right = surfaceCrossing(grid, centre, 1);
     // An edge whose junction has merged with a neighbour's meets the surface beyond that
@@ -108,12 +199,26 @@ export function engineeringResults(sim: Simulation, field: Field, grid: NodeGrid
       drawnPlusLateralUm: left !== null && right !== null ? rounded(right - left) : null,
       curvatureRadiusLeftUm: rounded(radius(left)),
       curvatureRadiusRightUm: rounded(radius(right)),
+      layerStack: layers.map((l) => ({
+        type: l.sign > 0 ? 'n' : 'p',
+        topUm: rounded(l.top)!,
+        bottomUm: rounded(l.bottom)!,
+        sheetResistanceOhmSq: rounded(1 / l.conductance),
+        mobilityFit: l.fit.name,
+      })),
     };
   });
 
+  const surfaceInvertedAt = (k: number) => surfaceValueAt(grid, 0.5 * (windows[k][0] + windows[k][1])) > 0;
   const spacings = neighbourPairs(windows).map(([l, r]) => {
-    const s = pairSpacing(grid, contours, mesh, regions, windows, l, r);
+    // Two windows without a layer at the centre, or whose surface layers differ in type, have no gap to give.
+    const inverted = surfaceInvertedAt(l);
+    const layered = (perWindow[l].layerStack?.length ?? 0) > 0 && (perWindow[r].layerStack?.length ?? 0) > 0;
+    const s = layered && inverted === surfaceInvertedAt(r)
+      ? pairSpacing(grid, contours, mesh, inverted ? regions : substrateTypeRegions(), windows, l, r, !inverted)
+      : { left: l, right: r, stripeUm: windows[r][0] - windows[l][1], surfaceGapUm: null, minimumGapUm: null, minimumGapDepthUm: null, merged: false };
     return { ...s, surfaceGapUm: rounded(s.surfaceGapUm), minimumGapUm: rounded(s.minimumGapUm), minimumGapDepthUm: rounded(s.minimumGapDepthUm) };
   });
+  const fit = topFit ?? substrateOppositeFit(sim);
   return { windows: perWindow, spacings, mobility: { carrier: fit.carrier, fit: fit.name, source: fit.source } };
 }

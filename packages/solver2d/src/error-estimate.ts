@@ -99,7 +99,13 @@ export function withErrorBars(reports: Report[], recipe: Recipe): Report {
       if (w[key] === undefined) continue;
       errors[key] = bar(reports.map((r) => r.windows[k]?.[key]));
     }
-    return { ...w, errors };
+    // A layer's bar where every solve found the same stack (types in the same order).
+    const stacks = reports.map((r) => r.windows[k]?.layerStack ?? []);
+    const same = stacks.every((s) => s.length === stacks[0].length && s.every((l, n) => l.type === stacks[0][n].type));
+    const layerStack = w.layerStack?.map((l, n) => ({
+      ...l, errors: { sheetResistanceOhmSq: same ? bar(stacks.map((s) => s[n].sheetResistanceOhmSq)) : null },
+    }));
+    return { ...w, ...(layerStack ? { layerStack } : {}), errors };
   });
   const spacings = fine.spacings?.map((s, k) => {
     const errors: ErrorBars<SpacingErrorKey> = {};

@@ -54,3 +54,10 @@ export function nearestColumn(mesh: Mesh, x: number): number {
 export function surfaceRegionAt(regions: Regions, mesh: Mesh, x: number): number {
   return regions.labels[nearestColumn(mesh, x)];
 }
+
+/** True where the region `label` holds a node of the bottom row: for the substrate's type, joined to the substrate. */
+export function reachesBottom(regions: Regions, label: number, nx: number, nz: number): boolean {
+  const { labels } = regions;
+  for (let k = (nz - 1) * nx; k < nz * nx; k++) if (labels[k] === label) return true;
+  return false;
+}

@@ -30,12 +30,20 @@ const windowReport = z.strictObject({
   surfaceConcentrationCm3: z.number(),
   surfaceBySpeciesCm3: counts,
   centreDoseCm2: counts,
-  sheetResistanceOhmSq: length.optional().describe('sheet resistance below the window centre, surface to junction, Ω/sq'),
+  sheetResistanceOhmSq: length.optional().describe('sheet resistance of the surface layer below the window centre, surface to junction, Ω/sq'),
   lineResistanceOhmPerUm: length.optional().describe('resistance per µm of a long line of this drawn width, Ω/µm'),
   effectiveWidthUm: length.optional().describe('electrical width: line conductance × centre sheet resistance, µm'),
   drawnPlusLateralUm: length.optional().describe('drawn width plus both lateral encroachments, µm'),
   curvatureRadiusLeftUm: length.optional().describe('radius of the junction at the middle of its turn under the left mask edge, µm'),
   curvatureRadiusRightUm: length.optional(),
+  layerStack: z.array(z.strictObject({
+    type: z.enum(['n', 'p']),
+    topUm: z.number(),
+    bottomUm: z.number(),
+    sheetResistanceOhmSq: length.describe('sheet resistance of this layer alone (a buried layer\'s pinched value), Ω/sq'),
+    mobilityFit: z.string().describe('mobility fit of the layer\'s majority carriers'),
+    errors: z.strictObject({ sheetResistanceOhmSq: z.number().nullable().optional() }).optional(),
+  })).optional().describe('each layer below the window centre that a junction bounds, from the surface down'),
   errors: errorBars(WINDOW_ERROR_KEYS, 'µm, Ω/sq, Ω/µm').optional(),
 });
 

@@ -16,25 +16,41 @@ import { UM_TO_CM } from './units.ts';
 
 /**
  * Sheet conductance (S per square) of a column profile from the surface to `toDepthUm`
- * (the junction), by the trapezoidal rule on the nodes. The last, partial interval ends at
- * the doping interpolated to `toDepthUm`, counted only while it is still of the surface's
- * type: about zero at a graded junction, the full value for a layer that ends abruptly there.
+ * (the junction): the surface layer (see layerConductanceS).
  */
 export function sheetConductanceS(donors: ArrayLike<number>, acceptors: ArrayLike<number>, z: ArrayLike<number>,
                                   toDepthUm: number, fit: MobilityFit): number {
-  const sign = Math.sign(donors[0] - acceptors[0]);
+  return layerConductanceS(donors, acceptors, z, 0, toDepthUm, Math.sign(donors[0] - acceptors[0]), fit);
+}
+
+/**
+ * Sheet conductance (S per square) of the layer of a column profile between the depths
+ * `fromUm` and `toUm` (junctions, or the surface), whose net doping has the sign `sign`
+ * (+1 n-type, −1 p-type), by the trapezoidal rule on the nodes. The partial intervals at
+ * either end run to the doping interpolated there, counted only while it is of the layer's
+ * type: about zero at a graded junction, the full value where a layer ends abruptly.
+ */
+export function layerConductanceS(donors: ArrayLike<number>, acceptors: ArrayLike<number>, z: ArrayLike<number>,
+                                  fromUm: number, toUm: number, sign: number, fit: MobilityFit): number {
   const sigma = (nd: number, na: number) => (Math.sign(nd - na) === sign ? conductivitySPerCm(nd - na, nd + na, fit) : 0);
+  const at = (depth: number, j: number) => {
+    const t = (depth - z[j - 1]) / (z[j] - z[j - 1]);
+    return sigma((1 - t) * donors[j - 1] + t * donors[j], (1 - t) * acceptors[j - 1] + t * acceptors[j]);
+  };
+  let j = 1;
+  while (j < z.length && z[j] <= fromUm) j++;
+  if (j >= z.length || !(toUm > fromUm)) return 0;
+  let prevZ = fromUm;
+  let prevS = fromUm <= z[0] ? sigma(donors[0], acceptors[0]) : at(fromUm, j);
   let sum = 0;
-  let prevS = sigma(donors[0], acceptors[0]);
-  for (let j = 1; j < z.length && z[j - 1] < toDepthUm; j++) {
-    if (z[j] >= toDepthUm) {
-      const t = (toDepthUm - z[j - 1]) / (z[j] - z[j - 1]);
-      const end = sigma((1 - t) * donors[j - 1] + t * donors[j], (1 - t) * acceptors[j - 1] + t * acceptors[j]);
-      sum += 0.5 * (prevS + end) * (toDepthUm - z[j - 1]);
+  for (; j < z.length; j++) {
+    if (z[j] >= toUm) {
+      sum += 0.5 * (prevS + at(toUm, j)) * (toUm - prevZ);
       break;
     }
     const s = sigma(donors[j], acceptors[j]);
-    sum += 0.5 * (prevS + s) * (z[j] - z[j - 1]);
+    sum += 0.5 * (prevS + s) * (z[j] - prevZ);
+    prevZ = z[j];
     prevS = s;
   }
   return sum * UM_TO_CM;

@@ -1,7 +1,7 @@
 import type { ErrorBars, SpacingErrorKey } from './error-estimate.ts';
 import { surfaceCrossing, type NodeGrid, type Point, type Polyline } from './junction.ts';
 import type { Mesh } from './mesh.ts';
-import { surfaceRegionAt, type Regions } from './region.ts';
+import { reachesBottom, surfaceRegionAt, type Regions } from './region.ts';
 
 /**
  * Spacing between the junctions of two neighbouring windows across the masked stripe
@@ -87,10 +87,13 @@ export function contourEndingAt(contours: readonly Polyline[], x: number): Polyl
 
 /**
  * Spacing of one pair. `grid` is the wall-padded junction indicator (positive inside the
- * diffused regions), `contours` its zero contours, `regions` the labelled diffused regions.
+ * diffused regions), `contours` its zero contours, `regions` the labelled regions of the
+ * type at the surface of both window centres. Where that is the substrate's type
+ * (`substrateType`: source/drain regions in a well), two layers joined only through the
+ * substrate below are not merged with each other.
  */
 export function pairSpacing(grid: NodeGrid, contours: readonly Polyline[], mesh: Mesh, regions: Regions,
-                            windows: readonly Window[], left: number, right: number): PairSpacing {
+                            windows: readonly Window[], left: number, right: number, substrateType = false): PairSpacing {
   const [, x1] = windows[left];
   const [x0] = windows[right];
   const base = { left, right, stripeUm: x0 - x1 };
@@ -103,9 +106,11 @@ export function pairSpacing(grid: NodeGrid, contours: readonly Polyline[], mesh:
   const xb = surfaceCrossing(grid, cr, -1);
   const surfaceApart = xa !== null && xb !== null && xa < cr && xb > cl && xb > xa;
   const surfaceGap = surfaceApart ? xb - xa : 0;
-  if (labelL === labelR) return { ...base, surfaceGapUm: surfaceGap, minimumGapUm: 0, minimumGapDepthUm: null, merged: true };
-  const a = contourEndingAt(contours, xa!);
-  const b = contourEndingAt(contours, xb!);
+  const viaSubstrate = substrateType && reachesBottom(regions, labelL, mesh.nx, mesh.nz);
+  if (labelL === labelR && !viaSubstrate) return { ...base, surfaceGapUm: surfaceGap, minimumGapUm: 0, minimumGapDepthUm: null, merged: true };
+  if (xa === null || xb === null) return { ...base, surfaceGapUm: null, minimumGapUm: null, minimumGapDepthUm: null, merged: false };
+  const a = contourEndingAt(contours, xa);
+  const b = contourEndingAt(contours, xb);
   if (!a || !b || a === b) return { ...base, surfaceGapUm: surfaceGap, minimumGapUm: null, minimumGapDepthUm: null, merged: false };
   const { distance, midpoint } = closestApproach(a, b);
   return { ...base, surfaceGapUm: surfaceGap, minimumGapUm: distance, minimumGapDepthUm: midpoint[1], merged: false };

@@ -78,19 +78,35 @@ export function windowTable(report: Report): string {
   );
 }
 
+/** A resistance to 4 significant figures, with its error bar to 1 where there is one. */
+function fmtResistance(v: number | null | undefined, e: number | null | undefined): string {
+  if (v === null || v === undefined) return '—';
+  const shown = Number(v.toPrecision(4)).toString();
+  return e === null || e === undefined ? shown : `${shown} ± ${Number(e.toPrecision(1))}`;
+}
+
 /** Sheet and line resistance, effective width and edge curvature, per window. */
 export function resistanceTable(report: Report): string {
-  const sig = (v: number | null | undefined) => (v === null || v === undefined ? '—' : Number(v.toPrecision(4)).toString());
-  const pm = (v: number | null | undefined, e: number | null | undefined) =>
-    v === null || v === undefined ? '—' : e === null || e === undefined ? sig(v) : `${sig(v)} ± ${Number(e.toPrecision(1))}`;
   return table(
     ['window', 'Rs Ω/sq', 'line Ω/µm', 'W eff µm', 'W+2·lateral µm', 'radius L µm', 'radius R µm'],
     report.windows.map((w, k) => [
-      String(k + 1), pm(w.sheetResistanceOhmSq, w.errors?.sheetResistanceOhmSq), pm(w.lineResistanceOhmPerUm, w.errors?.lineResistanceOhmPerUm),
+      String(k + 1), fmtResistance(w.sheetResistanceOhmSq, w.errors?.sheetResistanceOhmSq), fmtResistance(w.lineResistanceOhmPerUm, w.errors?.lineResistanceOhmPerUm),
       fmtPlusMinus(w.effectiveWidthUm ?? null, w.errors?.effectiveWidthUm), fmtPlusMinus(w.drawnPlusLateralUm ?? null, w.errors?.drawnPlusLateralUm),
       fmtPlusMinus(w.curvatureRadiusLeftUm ?? null, w.errors?.curvatureRadiusLeftUm), fmtPlusMinus(w.curvatureRadiusRightUm ?? null, w.errors?.curvatureRadiusRightUm),
     ]),
   );
+}
+
+/** Each layer below the window centres, where some window has more than one (an emitter in a base, a source/drain in a well). */
+export function layerTable(report: Report): string {
+  const rows: string[][] = [];
+  report.windows.forEach((w, k) => {
+    (w.layerStack ?? []).forEach((l, n) => rows.push([
+      String(k + 1), String(n + 1), l.type, fmtLength(l.topUm), fmtLength(l.bottomUm),
+      fmtResistance(l.sheetResistanceOhmSq, l.errors?.sheetResistanceOhmSq), l.mobilityFit,
+    ]));
+  });
+  return table(['window', 'layer', 'type', 'top µm', 'bottom µm', 'Rs Ω/sq', 'mobility fit'], rows);
 }
 
 /** Junction-to-junction spacing across each masked stripe between neighbouring windows. */
@@ -127,7 +143,8 @@ export function summary({ report }: Analysis, seconds: number, errorSeconds: num
       `${errorSeconds === null ? '' : `, ${errorSeconds.toFixed(2)} s`}\n`
     : 'no error bars (--error-solves 0)\n';
   const spacing = report.spacings && report.spacings.length > 0 ? `\n\n${spacingTable(report)}` : '';
+  const stacked = report.windows.some((w) => (w.layerStack?.length ?? 0) > 1) ? `\n\n${layerTable(report)}` : '';
   const mobility = report.mobility ? `\nmobility: ${report.mobility.carrier}s, ${report.mobility.fit} fit of ${report.mobility.source}` : '';
-  return `${head}${mesh}\n${errors}\n${windowTable(report)}\n\n${resistanceTable(report)}${spacing}\n\n` +
+  return `${head}${mesh}\n${errors}\n${windowTable(report)}\n\n${resistanceTable(report)}${stacked}${spacing}\n\n` +
     `dose per open area: ${doses}\nthermal budget ∫D dt: ${budgets}${mobility}`;
 }
