@@ -1,18 +1,13 @@
 import { edgeCurvature } from './curvature.ts';
 import type { ErrorBars, ErrorEstimateSummary, WindowErrorKey } from './error-estimate.ts';
 import type { Field } from './field.ts';
-import { columnAt, crossings, surfaceCrossing, surfaceValueAt, wallPaddedGrid, zeroContours, type NodeGrid } from './junction.ts';
+import { columnAt, crossings, surfaceCrossing, wallPaddedGrid, zeroContours, type NodeGrid } from './junction.ts';
 import { fitForDopant, type Carrier, type MobilityFit } from './mobility.ts';
 import { invertedNodes, labelRegions, reachesBottom, surfaceRegionAt, type Regions } from './region.ts';
 import { effectiveWidthUm, layerConductanceS, lineResistanceOhmPerUm, regionConductance } from './resistance.ts';
 import type { Simulation } from './simulate.ts';
-import { contourEndingAt, neighbourPairs, pairSpacing, type PairSpacing } from './spacing.ts';
+import { contourEndingAt, neighbourPairs, noSpacing, pairSpacing, type PairSpacing } from './spacing.ts';
 
-/**
- * The numbers a layout or process rule is written from, per window and per pair of
- * neighbouring windows: sheet and line resistance, effective width, edge curvature, spacing.
- * Each is computed in its own module; this one only gathers them for the report.
- */
 /** One layer of the column below a window centre, between two junctions or the surface and a junction. */
 export interface LayerResult {
   /** n or p: the sign of the net doping */
@@ -27,6 +22,11 @@ export interface LayerResult {
   errors?: { sheetResistanceOhmSq?: number | null };
 }
 
+/**
+ * The numbers a layout or process rule is written from, per window and per pair of
+ * neighbouring windows: sheet and line resistance, effective width, edge curvature, spacing.
+ * Each is computed in its own module; this one only gathers them for the report.
+ */
 export interface WindowResults {
   /** sheet resistance of the surface layer below the window centre, surface to junction, Ω/sq */
   sheetResistanceOhmSq?: number | null;
@@ -165,7 +165,7 @@ export function engineeringResults(sim: Simulation, field: Field, grid: NodeGrid
     if (depths.length === 0) depths.push(mesh.depthUm);
     const regionSet = surfaceInverted ? regions : substrateTypeRegions();
     const label = surfaceRegionAt(regionSet, mesh, centre);
-    if (label === 0 || !(column[0] !== 0)) return noResults();
+    if (label === 0 || !(Math.abs(column[0]) > 0)) return noResults();
     const donors = columnAt(donorGrid, centre, donorColumn);
     const acceptors = columnAt(acceptorGrid, centre, acceptorColumn);
     const species = Object.fromEntries(sim.plan.species.map((s) => [s.name, columnAt(speciesGrids()[s.name], centre, new Float64Array(mesh.nz))]));
@@ -209,14 +209,14 @@ export function engineeringResults(sim: Simulation, field: Field, grid: NodeGrid
     };
   });
 
-  const surfaceInvertedAt = (k: number) => surfaceValueAt(grid, 0.5 * (windows[k][0] + windows[k][1])) > 0;
+  const substrateLetter = sim.plan.substrate.type === 'donor' ? 'n' : 'p';
   const spacings = neighbourPairs(windows).map(([l, r]) => {
     // Two windows without a layer at the centre, or whose surface layers differ in type, have no gap to give.
-    const inverted = surfaceInvertedAt(l);
-    const layered = (perWindow[l].layerStack?.length ?? 0) > 0 && (perWindow[r].layerStack?.length ?? 0) > 0;
-    const s = layered && inverted === surfaceInvertedAt(r)
-      ? pairSpacing(grid, contours, mesh, inverted ? regions : substrateTypeRegions(), windows, l, r, !inverted)
-      : { left: l, right: r, stripeUm: windows[r][0] - windows[l][1], surfaceGapUm: null, minimumGapUm: null, minimumGapDepthUm: null, merged: false };
+    const typeL = perWindow[l].layerStack?.[0]?.type;
+    const typeR = perWindow[r].layerStack?.[0]?.type;
+    const s = typeL !== undefined && typeL === typeR
+      ? pairSpacing(grid, contours, mesh, typeL === substrateLetter ? substrateTypeRegions() : regions, windows, l, r, typeL === substrateLetter)
+      : noSpacing(windows, l, r);
     return { ...s, surfaceGapUm: rounded(s.surfaceGapUm), minimumGapUm: rounded(s.minimumGapUm), minimumGapDepthUm: rounded(s.minimumGapDepthUm) };
   });
   const fit = topFit ?? substrateOppositeFit(sim);

@@ -85,6 +85,11 @@ export function contourEndingAt(contours: readonly Polyline[], x: number): Polyl
   return best;
 }
 
+/** A pair with no gap to give (no layer at a centre, or none apart from the other). */
+export function noSpacing(windows: readonly Window[], left: number, right: number): PairSpacing {
+  return { left, right, stripeUm: windows[right][0] - windows[left][1], surfaceGapUm: null, minimumGapUm: null, minimumGapDepthUm: null, merged: false };
+}
+
 /**
  * Spacing of one pair. `grid` is the wall-padded junction indicator (positive inside the
  * diffused regions), `contours` its zero contours, `regions` the labelled regions of the
@@ -101,14 +106,14 @@ export function pairSpacing(grid: NodeGrid, contours: readonly Polyline[], mesh:
   const cr = 0.5 * (windows[right][0] + windows[right][1]);
   const labelL = surfaceRegionAt(regions, mesh, cl);
   const labelR = surfaceRegionAt(regions, mesh, cr);
-  if (labelL === 0 || labelR === 0) return { ...base, surfaceGapUm: null, minimumGapUm: null, minimumGapDepthUm: null, merged: false };
+  if (labelL === 0 || labelR === 0) return noSpacing(windows, left, right);
   const xa = surfaceCrossing(grid, cl, 1);
   const xb = surfaceCrossing(grid, cr, -1);
   const surfaceApart = xa !== null && xb !== null && xa < cr && xb > cl && xb > xa;
   const surfaceGap = surfaceApart ? xb - xa : 0;
   const viaSubstrate = substrateType && reachesBottom(regions, labelL, mesh.nx, mesh.nz);
   if (labelL === labelR && !viaSubstrate) return { ...base, surfaceGapUm: surfaceGap, minimumGapUm: 0, minimumGapDepthUm: null, merged: true };
-  if (xa === null || xb === null) return { ...base, surfaceGapUm: null, minimumGapUm: null, minimumGapDepthUm: null, merged: false };
+  if (xa === null || xb === null) return noSpacing(windows, left, right);
   const a = contourEndingAt(contours, xa);
   const b = contourEndingAt(contours, xb);
   if (!a || !b || a === b) return { ...base, surfaceGapUm: surfaceGap, minimumGapUm: null, minimumGapDepthUm: null, merged: false };
