@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { coarsenedRecipe, observedOrder, richardsonError, SAFETY_ASSUMED, SAFETY_MEASURED } from '../../packages/solver2d/src/error-estimate.ts';
+import { observedOrder, richardsonError, SAFETY_ASSUMED, SAFETY_MEASURED } from '../../packages/solver2d/src/error-bars.ts';
+import { coarsenedRecipe } from '../../packages/solver2d/src/error-estimate.ts';
 import { parseRecipe } from '../../packages/solver2d/src/recipe.ts';
 
 // A quantity that behaves exactly as f(h) = f* + C·h^p (closed form): Richardson's estimate

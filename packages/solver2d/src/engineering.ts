@@ -1,5 +1,5 @@
 import { edgeCurvature } from './curvature.ts';
-import type { ErrorBars, ErrorEstimateSummary, WindowErrorKey } from './error-estimate.ts';
+import type { ErrorBars, ErrorEstimateSummary, WindowErrorKey } from './error-bars.ts';
 import type { Field } from './field.ts';
 import { columnAt, crossings, surfaceCrossing, wallPaddedGrid, zeroContours, type NodeGrid } from './junction.ts';
 import { fitForDopant, type Carrier, type MobilityFit } from './mobility.ts';

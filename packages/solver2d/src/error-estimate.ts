@@ -2,46 +2,15 @@ import { analyze, type Analysis, type Report } from './analyze.ts';
 import { DEFAULT_STEP_GROWTH, planRecipe, type Plan, type PlanLimits } from './plan.ts';
 import type { Recipe } from './recipe.ts';
 import { simulate, type SimulateOptions } from './simulate.ts';
+import {
+  errorBar, observedOrder, SPACING_ERROR_KEYS, WINDOW_ERROR_KEYS,
+  type ErrorBars, type ErrorEstimateSummary, type SpacingErrorKey, type WindowErrorKey,
+} from './error-bars.ts';
 
-/**
- * Numerical error of every reported length, from solves on coarser meshes and Richardson
- * extrapolation.
- *
- * A coarser solve halves the mesh density (mesh.refine × ½) and doubles the time steps
- * (stepGrowth − 1 × 2: the steps grow geometrically, so Δt/t is what sets the time error).
- * The scheme is second order in both, so a quantity f with mesh size h behaves as
- * f(h) ≈ f* + C·h^p with p = 2, and from the default and the coarser solve
- *   f* ≈ f₁ + (f₁ − f₂)/(2^p − 1),      error of f₁ ≈ |f₁ − f₂|/(2^p − 1).
- * With a third, coarser still solve the order is measured, p = log₂(|f₃ − f₂| / |f₂ − f₁|),
- * and the smaller of the measured and the formal order is used (the larger error bar).
- * Safety factors follow common practice for grid-convergence estimates: 1.25 when the
- * order was measured and is credible (0.5 ≤ p, the three values monotone), 3 otherwise.
+/*
+ * Error bars of every reported length from solves of the same recipe on coarser meshes;
+ * the estimate itself, and the keys a report carries, are error-bars.ts's.
  */
-export const FORMAL_ORDER = 2;
-export const SAFETY_MEASURED = 1.25;
-export const SAFETY_ASSUMED = 3;
-const MIN_CREDIBLE_ORDER = 0.5;
-
-/** Window fields that get an error bar (lengths, and the resistances as well). */
-export const WINDOW_ERROR_KEYS = [
-  'junctionDepthUm', 'lateralLeftUm', 'lateralRightUm', 'effectiveWidthUm', 'drawnPlusLateralUm',
-  'curvatureRadiusLeftUm', 'curvatureRadiusRightUm', 'sheetResistanceOhmSq', 'lineResistanceOhmPerUm',
-] as const;
-export const SPACING_ERROR_KEYS = ['surfaceGapUm', 'minimumGapUm', 'minimumGapDepthUm'] as const;
-
-export type WindowErrorKey = (typeof WINDOW_ERROR_KEYS)[number];
-export type SpacingErrorKey = (typeof SPACING_ERROR_KEYS)[number];
-
-export interface ErrorEstimateSummary {
-  method: string;
-  /** the meshes solved, default first: refine factor, stepGrowth and size */
-  meshes: { refine: number; stepGrowth: number; columns: number; rows: number }[];
-  /** order measured on the junction depths and lateral encroachments (median), null with two meshes */
-  observedOrder: number | null;
-}
-
-/** Error bars in the unit of the field they belong to (named the same). */
-export type ErrorBars<K extends string> = Partial<Record<K, number | null>>;
 
 /** The recipe with the mesh `2^level` times coarser and time steps `2^level` times longer. */
 export function coarsenedRecipe(recipe: Recipe, level: number): Recipe {
@@ -55,29 +24,6 @@ export function coarsenedRecipe(recipe: Recipe, level: number): Recipe {
   if (mesh.maxSpacingUm !== undefined) mesh.maxSpacingUm /= f;
   const growth = recipe.numerics?.stepGrowth ?? DEFAULT_STEP_GROWTH;
   return { ...recipe, mesh, numerics: { ...(recipe.numerics ?? {}), stepGrowth: 1 + (growth - 1) / f } };
-}
-
-/** Order measured from three values on meshes h, 2h, 4h; null if they are not monotone or barely move. */
-export function observedOrder(f1: number, f2: number, f3: number): number | null {
-  const d12 = f2 - f1;
-  const d23 = f3 - f2;
-  if (d12 === 0 || d23 === 0 || Math.sign(d12) !== Math.sign(d23)) return null;
-  return Math.log2(Math.abs(d23) / Math.abs(d12));
-}
-
-/** Error bar of f1 from f2 (and f3 if solved). */
-export function richardsonError(f1: number, f2: number, f3?: number): number {
-  const measured = f3 === undefined ? null : observedOrder(f1, f2, f3);
-  const credible = measured !== null && measured >= MIN_CREDIBLE_ORDER;
-  const p = credible ? Math.min(measured, FORMAL_ORDER) : FORMAL_ORDER;
-  const safety = credible ? SAFETY_MEASURED : SAFETY_ASSUMED;
-  return (safety * Math.abs(f1 - f2)) / (2 ** p - 1);
-}
-
-function bar(values: (number | null | undefined)[]): number | null {
-  const [f1, f2, f3] = values;
-  if (typeof f1 !== 'number' || typeof f2 !== 'number') return null;
-  return Number(richardsonError(f1, f2, typeof f3 === 'number' ? f3 : undefined).toPrecision(3));
 }
 
 function median(v: number[]): number | null {
@@ -97,13 +43,13 @@ export function withErrorBars(reports: Report[], recipe: Recipe): Report {
     const errors: ErrorBars<WindowErrorKey> = {};
     for (const key of WINDOW_ERROR_KEYS) {
       if (w[key] === undefined) continue;
-      errors[key] = bar(reports.map((r) => r.windows[k]?.[key]));
+      errors[key] = errorBar(reports.map((r) => r.windows[k]?.[key]));
     }
     // A layer's bar where every solve found the same stack (types in the same order).
     const stacks = reports.map((r) => r.windows[k]?.layerStack ?? []);
     const same = stacks.every((s) => s.length === stacks[0].length && s.every((l, n) => l.type === stacks[0][n].type));
     const layerStack = w.layerStack?.map((l, n) => ({
-      ...l, errors: { sheetResistanceOhmSq: same ? bar(stacks.map((s) => s[n].sheetResistanceOhmSq)) : null },
+      ...l, errors: { sheetResistanceOhmSq: same ? errorBar(stacks.map((s) => s[n].sheetResistanceOhmSq)) : null },
     }));
     return { ...w, ...(layerStack ? { layerStack } : {}), errors };
   });
@@ -111,7 +57,7 @@ export function withErrorBars(reports: Report[], recipe: Recipe): Report {
     const errors: ErrorBars<SpacingErrorKey> = {};
     for (const key of SPACING_ERROR_KEYS) {
       // Once merged a gap is 0 by definition and has no error of its own.
-      errors[key] = reports.every((r) => r.spacings?.[k] && !r.spacings[k].merged) ? bar(reports.map((r) => r.spacings![k][key])) : null;
+      errors[key] = reports.every((r) => r.spacings?.[k] && !r.spacings[k].merged) ? errorBar(reports.map((r) => r.spacings![k][key])) : null;
     }
     return { ...s, errors };
   });

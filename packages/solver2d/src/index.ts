@@ -8,7 +8,8 @@ export { BUILTIN_DOPANTS, intrinsicDiffusivityCm2PerS, type Dopant } from './dop
 export type { Mesh } from './mesh.ts';
 export type { Polyline, Point } from './junction.ts';
 export { MOBILITY_FITS, mobilityCm2PerVs, conductivitySPerCm, resistivityOhmCm, fitForDopant, type MobilityFit } from './mobility.ts';
-export { coarseReports, coarsenedRecipe, withErrorBars, solveWithErrorBars, richardsonError, type ErrorEstimateSummary } from './error-estimate.ts';
+export { coarseReports, coarsenedRecipe, withErrorBars, solveWithErrorBars } from './error-estimate.ts';
+export { richardsonError, type ErrorEstimateSummary } from './error-bars.ts';
 export { searchStripe, searchStripeWithError, pairRecipe, StripeSearchError, type StripeSearch, type StripeSearchWithError, type StripeSolve } from './stripe-search.ts';
 export { reportSchema, reportJsonSchema } from './report-schema.ts';
 export type { PairSpacing } from './spacing.ts';

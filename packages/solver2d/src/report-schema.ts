@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { REPORT_SCHEMA_ID, type Report } from './analyze.ts';
-import { SPACING_ERROR_KEYS, WINDOW_ERROR_KEYS } from './error-estimate.ts';
+import { SPACING_ERROR_KEYS, WINDOW_ERROR_KEYS } from './error-bars.ts';
 
 /**
  * The report contract ("edgewise.report/1") as a schema, for `edgewise schema report` and for

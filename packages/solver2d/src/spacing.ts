@@ -1,4 +1,4 @@
-import type { ErrorBars, SpacingErrorKey } from './error-estimate.ts';
+import type { ErrorBars, SpacingErrorKey } from './error-bars.ts';
 import { surfaceCrossing, type NodeGrid, type Point, type Polyline } from './junction.ts';
 import type { Mesh } from './mesh.ts';
 import { reachesBottom, surfaceRegionAt, type Regions } from './region.ts';

@@ -1,5 +1,6 @@
 import { analyze } from './analyze.ts';
-import { coarsenedRecipe, richardsonError } from './error-estimate.ts';
+import { richardsonError } from './error-bars.ts';
+import { coarsenedRecipe } from './error-estimate.ts';
 import { planRecipe, type PlanLimits } from './plan.ts';
 import type { Recipe } from './recipe.ts';
 import { simulate } from './simulate.ts';
