@@ -1,5 +1,6 @@
 import { buildMask, type Mask } from './mask.ts';
 import { buildMesh, uniformAxis, type Mesh } from './mesh.ts';
+import { PRIMING_CALLS, primeOnce } from './priming.ts';
 import { factorTridiagonal } from './tridiagonal.ts';
 
 /**
@@ -101,7 +102,7 @@ export class AdiStepper {
   private readonly zEnds: FlatEnds;
 
   constructor(mesh: Mesh, mask: Mask) {
-    primeKernels();
+    primeOnce(primeKernels);
     const { nx, nz, x, dx, z, dzVolume } = mesh;
     this.nx = nx;
     this.nz = nz;
@@ -327,25 +328,13 @@ export class AdiStepper {
   }
 }
 
-/**
- * Calls to make of each hot loop before real work: V8 gives a function its type feedback only
- * after several calls (8 in Node 20's engine; 32 leaves room), and a loop compiled mid-call
- * (on-stack replacement) before the code after it has run with feedback can give up at that
- * code on every later call, run interpreted and box every number. Seen without it in about
- * 1 process in 6 solving the base-resistor example 10 times: 880 deoptimisations of one loop,
- * or 1.6 GB allocated where 30 MB is usual (check with `node --trace-deopt --trace-gc`).
- */
-export const PRIMING_CALLS = 32;
-let primed = false;
 
 /**
  * Runs every path of both steppers, held and sealed, in both schemes, PRIMING_CALLS times on
  * a tiny cross-section (13 × 10 points: blocks of four lines, mixed blocks and remainders),
- * once per thread. Costs about a millisecond.
+ * once per thread (primeOnce). Costs about a millisecond.
  */
 function primeKernels(): void {
-  if (primed) return;
-  primed = true;
   const mesh = buildMesh(uniformAxis(1.3, 13), uniformAxis(0.9, 9));
   const stepper = new AdiStepper(mesh, buildMask(mesh, [[0.35, 0.85]]));
   const c = new Float64Array(mesh.nx * mesh.nz);

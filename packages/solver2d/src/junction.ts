@@ -1,4 +1,4 @@
-import { PRIMING_CALLS } from './adi.ts';
+import { PRIMING_CALLS, primeOnce } from './priming.ts';
 import type { Mesh } from './mesh.ts';
 
 /**
@@ -65,7 +65,7 @@ function zeroBetween(p: number, q: number, a: number, b: number): number {
  * Saddle cells are resolved by the mean of the four corners.
  */
 export function zeroContours(grid: NodeGrid): Polyline[] {
-  primeScan();
+  primeOnce(primeScan);
   const { xs, zs, values, nx, nz } = grid;
   // Edge ids: horizontal edge from node (i, j) to (i+1, j) is 2·(j·nx+i); vertical to (i, j+1) is +1.
   const point = new Map<number, Point>();
@@ -141,16 +141,13 @@ export function zeroContours(grid: NodeGrid): Polyline[] {
 
 /** crossingCells' output, kept between calls (see there). */
 let cellBuffer = new Float64Array(1 << 14);
-let primed = false;
 
 /**
  * Runs crossingCells PRIMING_CALLS times on a 3 × 3 grid, once per thread, so that the code
- * after its loop has type feedback before the loop is compiled mid-call (see PRIMING_CALLS in
- * adi.ts; without it the compiled scan was thrown away at its return, twice a sweep worker).
+ * after its loop has type feedback before the loop is compiled mid-call (see priming.ts;
+ * without it the compiled scan was thrown away at its return, twice a sweep worker).
  */
 function primeScan(): void {
-  if (primed) return;
-  primed = true;
   const values = Float64Array.of(1, 1, -1, 1, -1, -1, -1, -1, -1);
   for (let r = 0; r < PRIMING_CALLS; r++) crossingCells(values, 3, 3);
 }
