@@ -1,7 +1,8 @@
 import npyjs from 'npyjs';
 import { describe, expect, it } from 'vitest';
 import { encodeNpy } from '../../packages/cli/src/files.ts';
-import { layoutGrid, MASK_BAND_PX } from '../../packages/viewer/src/layout.ts';
+import { layoutGrid } from '../../packages/viewer/src/layout.ts';
+import { MASK_BAND_PX } from '../../packages/viewer/src/tile-view.ts';
 import {
   gridIndices, gridPositions, layerVertexValues, maskedIntervals, meshLinePositions, nodeGrid, subGridPositions,
   subGridValues, thinAxis,

@@ -1,4 +1,6 @@
+import { LIVE_ID } from './live-panel.ts';
 import type { RunData } from './load.ts';
+import type { Tile } from './tile.ts';
 import { windowWidthUm } from './load.ts';
 
 /**
@@ -45,4 +47,18 @@ export function captionElement(run: RunData, live: boolean): HTMLElement {
   div.title = `${head.textContent}\nwindow ${fmtUm(width, 3)} µm\njunction depth ${fmtUm(w?.junctionDepthUm)}${pm('junctionDepthUm')} µm\n` +
     `lateral encroachment, left | right: ${fmtUm(w?.lateralLeftUm)} | ${fmtUm(w?.lateralRightUm)} µm${lateralErr}`;
   return div;
+}
+
+/** Captions under the drawn tiles, each at its tile's left edge. */
+export function placeCaptions(container: HTMLElement, tiles: Tile[], stageHeight: number, cellWidth: number): void {
+  container.replaceChildren();
+  for (const t of tiles) {
+    const v = t.view;
+    if (!v) continue;
+    const c = captionElement(t.run, t.run.id === LIVE_ID);
+    c.style.left = `${v.left}px`;
+    c.style.top = `${Math.min(stageHeight - 30, v.top + v.height + 17)}px`;
+    c.style.maxWidth = `${Math.max(v.width, cellWidth - 50)}px`;
+    container.append(c);
+  }
 }

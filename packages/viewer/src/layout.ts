@@ -1,4 +1,4 @@
-import type { TileView } from './tile.ts';
+import { MASK_BAND_PX, type TileView } from './tile-view.ts';
 
 /**
  * Grid layout of the tiles with one length scale for all: the same pixels per µm across
@@ -11,8 +11,6 @@ export interface Extent {
   depthUm: number;
 }
 
-/** Thickness of the mask band drawn above the surface, CSS px; the view starts a pixel above it. */
-export const MASK_BAND_PX = 7;
 const BAND = MASK_BAND_PX + 1;
 
 /** Room around each tile's plot, CSS px: axis labels left and below, the caption under them. */
@@ -28,6 +26,17 @@ export interface GridLayout {
   /** depth drawn this many times larger than width */
   stretch: number;
   views: TileView[];
+}
+
+/**
+ * Columns of a sweep over two parameters or more: one per value of the last (fastest)
+ * parameter when it has at most eight, so each row is one value of the others.
+ */
+export function sweepColumns(parameters: string[], values: Record<string, number | string>[]): number | undefined {
+  if (parameters.length < 2) return undefined;
+  const last = parameters[parameters.length - 1];
+  const distinct = new Set(values.map((v) => String(v[last])));
+  return distinct.size <= 8 ? distinct.size : undefined;
 }
 
 /** Stretches offered when the depth is much smaller than the width. */

@@ -1,13 +1,16 @@
 import { App } from './app.ts';
+import { pageElements } from './elements.ts';
 import { HttpSource, type FileSource } from './load.ts';
 import { loneRecipeFile, sourceFromDrop, sourceFromFileList } from './pick.ts';
+import { TestHooks } from './test-hooks.ts';
 import './style.css';
 
 /**
  * Start-up: served by `edgewise view`, the page opens the folder the server names (api/source);
  * otherwise it waits for a folder to be picked or dropped.
  */
-const app = new App(document.getElementById('view')!, document.getElementById('side')!);
+const elements = pageElements();
+const app = new App(elements);
 
 async function openLocal(source: ReturnType<typeof sourceFromFileList>): Promise<void> {
   const recipe = loneRecipeFile(source);
@@ -59,7 +62,7 @@ async function start(): Promise<void> {
   }
   if (!served) {
     app.setData({ label: '', kind: 'run', parameters: [], runs: [], problems: [], recipe: null });
-    document.querySelector('.empty')!.textContent = 'Open a run or sweep folder (buttons above), or drop one on the page.';
+    app.setEmpty('Open a run or sweep folder (buttons above), or drop one on the page.');
     return;
   }
   if (served.recipe) {
@@ -76,8 +79,8 @@ async function start(): Promise<void> {
 
 declare global {
   interface Window {
-    edgewise: { app: App; ready: Promise<void> };
+    edgewise: { app: TestHooks; ready: Promise<void> };
   }
 }
 
-window.edgewise = { app, ready: start() };
+window.edgewise = { app: new TestHooks(app), ready: start() };

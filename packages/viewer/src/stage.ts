@@ -1,7 +1,8 @@
 import * as THREE from 'three';
 import { colourMapRgba } from './colormap.ts';
 import { niceTicks, formatTick } from './ticks.ts';
-import type { Tile, TileView } from './tile.ts';
+import type { Tile } from './tile.ts';
+import type { TileView } from './tile-view.ts';
 
 const BACKGROUND = 0xf6f6f4;
 
@@ -91,6 +92,12 @@ export class Stage {
       if (tile.showContours) drawContours(ctx, v, tile.contours);
       drawTileAxes(ctx, v, tile.widthUm, tile.depthUm);
     }
+  }
+
+  /** Waits for the GPU to finish what it was given (a one-pixel read does). */
+  finish(): void {
+    const gl = this.renderer.getContext();
+    gl.readPixels(0, 0, 1, 1, gl.RGBA, gl.UNSIGNED_BYTE, new Uint8Array(4));
   }
 
   dispose(): void {

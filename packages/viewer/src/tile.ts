@@ -1,11 +1,12 @@
 import * as THREE from 'three';
 import type { ColourRange } from './colour-scale.ts';
-import { MASK_BAND_PX } from './layout.ts';
+import { fragmentShader, vertexShader } from './field-shader.ts';
 import type { RunData } from './load.ts';
 import {
   layerVertexValues, maskedIntervals, meshLinePositions, nodeGrid, subGridIndices, subGridPositions, subGridValues,
   thinAxis, type NodeGrid, type SubGrid,
 } from './mesh-geometry.ts';
+import { MASK_BAND_PX, type TileView } from './tile-view.ts';
 
 /** What a tile shows, shared by every tile. */
 export interface TileStyle {
@@ -18,65 +19,8 @@ export interface TileStyle {
   showContours: boolean;
 }
 
-/** Where a tile is drawn: a rectangle of the canvas (CSS px) and the world window it shows. */
-export interface TileView {
-  /** rectangle of the plot area, CSS px from the canvas' top left */
-  left: number;
-  top: number;
-  width: number;
-  height: number;
-  /** world x at the left edge and depth at the top edge, µm (the top may be above the surface) */
-  x0Um: number;
-  z0Um: number;
-  pxPerUmX: number;
-  pxPerUmZ: number;
-}
-
 /** Kept node lines are at least this many CSS px apart: finer detail is lost in the pixels. */
 export const DETAIL_PX = 2;
-
-// The vertex shader puts each node's log10 concentration on the range (t in [0, 1]), so the
-// fragment shader can run at medium precision (software WebGL is a third faster so) with
-// no visible banding: half floats resolve t to 5e-4, far finer than one of 256 colours.
-// The iso-line level keeps high precision.
-const vertexShader = /* glsl */ `
-attribute float level;
-uniform float lo;
-uniform float hi;
-uniform float isoStep;
-varying float vT;
-#ifdef ISO_LINES
-varying highp float vIso;
-#endif
-void main() {
-  vT = (level - lo) / max(hi - lo, 1e-6);
-#ifdef ISO_LINES
-  vIso = level / isoStep;
-#endif
-  gl_Position = projectionMatrix * modelViewMatrix * vec4(position, 1.0);
-}`;
-
-// Position on the range → colour map lookup; iso lines where the level crosses a multiple
-// of the step, about 1.2 px wide whatever the zoom (fwidth). The iso-line code is compiled
-// in only when the lines are on: software WebGL pays for it on every pixel otherwise.
-const fragmentShader = /* glsl */ `
-precision mediump float;
-uniform sampler2D colourMap;
-varying float vT;
-#ifdef ISO_LINES
-varying highp float vIso;
-#endif
-void main() {
-  float t = clamp(vT, 0.0, 1.0);
-  vec3 c = texture2D(colourMap, vec2(t * (255.0 / 256.0) + 0.5 / 256.0, 0.5)).rgb;
-#ifdef ISO_LINES
-  highp float d = abs(fract(vIso + 0.5) - 0.5) / max(fwidth(vIso), 1e-6);
-  float line = 1.0 - clamp(d - 0.6, 0.0, 1.0);
-  float light = dot(c, vec3(0.2126, 0.7152, 0.0722));
-  c = mix(c, light > 0.45 ? vec3(0.05) : vec3(0.95), 0.75 * line);
-#endif
-  gl_FragColor = vec4(c, 1.0);
-}`;
 
 /**
  * One run's cross-section: owns its geometry, materials and line buffers (GPU memory
@@ -239,13 +183,4 @@ export class Tile {
     this.levels.clear();
     this.scene.clear();
   }
-}
-
-/** World point (x, z in µm) to CSS px in the canvas, for a view. */
-export function worldToCanvas(view: TileView, xUm: number, zUm: number): [number, number] {
-  return [view.left + (xUm - view.x0Um) * view.pxPerUmX, view.top + (zUm - view.z0Um) * view.pxPerUmZ];
-}
-
-export function canvasToWorld(view: TileView, px: number, py: number): [number, number] {
-  return [view.x0Um + (px - view.left) / view.pxPerUmX, view.z0Um + (py - view.top) / view.pxPerUmZ];
 }

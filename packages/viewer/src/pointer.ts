@@ -1,0 +1,107 @@
+import { focusView, pan, zoomAbout, type FocusState } from './layout.ts';
+import { showReadout } from './readout.ts';
+import { sampleField } from './sample.ts';
+import type { Stage } from './stage.ts';
+import type { Tile } from './tile.ts';
+import { canvasToWorld } from './tile-view.ts';
+
+/** The grid of every tile, or one tile focused with its pan and zoom. */
+export type Mode = { kind: 'grid' } | { kind: 'focus'; tile: Tile; state: FocusState };
+
+/** What the pointer needs of the app. */
+export interface PointerHost {
+  readonly stage: Stage;
+  readonly mode: Mode;
+  /** the tile of the grid cell under a canvas point, in grid mode */
+  tileAt(px: number, py: number): Tile | null;
+  focus(tile: Tile): void;
+  /** the focused tile's new pan and zoom */
+  moveFocus(state: FocusState): void;
+}
+
+/**
+ * The pointer over the view: a click on a tile focuses it; in focus, drag pans, the wheel
+ * zooms about the pointer, a double click fits the tile again; the hover readout follows
+ * the pointer.
+ */
+export class PointerControls {
+  private drag: { x: number; y: number; moved: boolean } | null = null;
+
+  constructor(private readonly view: HTMLElement, private readonly readout: HTMLElement, private readonly host: PointerHost) {
+    view.addEventListener('pointerdown', (e) => this.down(e));
+    view.addEventListener('pointermove', (e) => this.move(e));
+    view.addEventListener('pointerup', (e) => this.up(e));
+    view.addEventListener('pointerleave', () => this.hideReadout());
+    view.addEventListener('wheel', (e) => this.wheel(e), { passive: false });
+    view.addEventListener('dblclick', () => {
+      const mode = host.mode;
+      if (mode.kind === 'focus') host.focus(mode.tile);
+    });
+  }
+
+  hideReadout(): void {
+    this.readout.hidden = true;
+  }
+
+  private local(e: { clientX: number; clientY: number }): [number, number] {
+    const r = this.host.stage.canvas.getBoundingClientRect();
+    return [e.clientX - r.left, e.clientY - r.top];
+  }
+
+  private area() {
+    return { width: this.host.stage.width, height: this.host.stage.height };
+  }
+
+  private down(e: PointerEvent): void {
+    if ((e.target as HTMLElement).closest('.readout')) return;
+    this.drag = { x: e.clientX, y: e.clientY, moved: false };
+    this.view.setPointerCapture(e.pointerId);
+  }
+
+  private move(e: PointerEvent): void {
+    const [px, py] = this.local(e);
+    const mode = this.host.mode;
+    if (this.drag && mode.kind === 'focus' && (e.buttons & 1) === 1) {
+      const dx = e.clientX - this.drag.x;
+      const dy = e.clientY - this.drag.y;
+      if (Math.abs(dx) + Math.abs(dy) > 2 || this.drag.moved) {
+        this.drag = { x: e.clientX, y: e.clientY, moved: true };
+        this.host.moveFocus(pan(mode.state, dx, dy));
+      }
+    }
+    this.hover(px, py);
+  }
+
+  private up(e: PointerEvent): void {
+    const drag = this.drag;
+    this.drag = null;
+    if (drag && !drag.moved && this.host.mode.kind === 'grid') {
+      const [px, py] = this.local(e);
+      const tile = this.host.tileAt(px, py);
+      if (tile) this.host.focus(tile);
+    }
+  }
+
+  private wheel(e: WheelEvent): void {
+    const mode = this.host.mode;
+    if (mode.kind !== 'focus') return;
+    e.preventDefault();
+    const [px, py] = this.local(e);
+    const factor = Math.exp(-e.deltaY * (e.deltaMode === 1 ? 0.05 : 0.0015));
+    this.host.moveFocus(zoomAbout(mode.state, this.area(), px, py, factor));
+    this.hover(px, py);
+  }
+
+  /** The readout at a canvas point of the focused tile: position, every layer, the side of the junction. */
+  private hover(px: number, py: number): void {
+    const mode = this.host.mode;
+    if (mode.kind !== 'focus') {
+      this.hideReadout();
+      return;
+    }
+    const tile = mode.tile;
+    const [x, z] = canvasToWorld(focusView(mode.state, this.area()), px, py);
+    const s = sampleField(tile.run.field, tile.run.layers.length, tile.grid, x, z);
+    showReadout(this.readout, tile.run.layers, x, z, s);
+  }
+}
