@@ -93,10 +93,11 @@ export function analyze(sim: Simulation): Analysis {
   const speciesGrids = Object.fromEntries(plan.species.map((s) => [s.name, wallPaddedGrid(mesh, sim.concentration[s.name])]));
 
   const warnings = [...plan.warnings];
-  const sorted = [...plan.mask.windows].sort((a, b) => a[0] - b[0]);
-  const leftLimit = (x0: number) => sorted.reduce((limit, w) => (w[1] < x0 ? Math.max(limit, w[1]) : limit), -Infinity);
-  const rightLimit = (x1: number) => sorted.reduce((limit, w) => (w[0] > x1 ? Math.min(limit, w[0]) : limit), Infinity);
-  const windows: WindowReport[] = plan.mask.windows.map(([x0, x1]) => {
+  // The near edges of each window's neighbours (walls where there is none).
+  const { windows: given, order } = plan.mask;
+  const leftLimit = (k: number) => (order.indexOf(k) > 0 ? given[order[order.indexOf(k) - 1]][1] : -Infinity);
+  const rightLimit = (k: number) => (order.indexOf(k) < order.length - 1 ? given[order[order.indexOf(k) + 1]][0] : Infinity);
+  const windows: WindowReport[] = plan.mask.windows.map(([x0, x1], k) => {
     const centre = 0.5 * (x0 + x1);
     const centreColumn = columnAt(grid, centre, column);
     const depths = crossings(centreColumn, mesh.z);
@@ -106,8 +107,8 @@ export function analyze(sim: Simulation): Analysis {
     const depth = depths.length > 0 ? depths[0] : null;
     // A crossing beyond the neighbouring window's near edge belongs to a merged region:
     // there is no encroachment to report on that side (the spacing says "merged").
-    const lefts = surfaceCrossings(grid, centre, -1).filter((x) => x > leftLimit(x0));
-    const rights = surfaceCrossings(grid, centre, 1).filter((x) => x < rightLimit(x1));
+    const lefts = surfaceCrossings(grid, centre, -1).filter((x) => x > leftLimit(k));
+    const rights = surfaceCrossings(grid, centre, 1).filter((x) => x < rightLimit(k));
     const stack = depths.map((d, k) => ({
       depthUm: rounded(d),
       lateralLeftUm: k < lefts.length ? rounded(x0 - lefts[k]) : null,

@@ -6,7 +6,7 @@ import { fitForDopant, type Carrier, type MobilityFit } from './mobility.ts';
 import { invertedNodes, labelRegions, reachesBottom, surfaceRegionAt, type Regions } from './region.ts';
 import { effectiveWidthUm, layerConductanceS, lineResistanceOhmPerUm, regionConductance } from './resistance.ts';
 import type { Simulation } from './simulate.ts';
-import { contourEndingAt, neighbourPairs, noSpacing, pairSpacing, type PairSpacing } from './spacing.ts';
+import { contourEndingAt, noSpacing, pairSpacing, type PairSpacing } from './spacing.ts';
 
 /** One layer of the column below a window centre, between two junctions or the surface and a junction. */
 export interface LayerResult {
@@ -210,7 +210,7 @@ export function engineeringResults(sim: Simulation, field: Field, grid: NodeGrid
   });
 
   const substrateLetter = sim.plan.substrate.type === 'donor' ? 'n' : 'p';
-  const spacings = neighbourPairs(windows).map(([l, r]) => {
+  const spacings = sim.plan.mask.pairs.map(([l, r]) => {
     // Two windows without a layer at the centre, or whose surface layers differ in type, have no gap to give.
     const typeL = perWindow[l].layerStack?.[0]?.type;
     const typeR = perWindow[r].layerStack?.[0]?.type;

@@ -12,12 +12,29 @@ export interface SurfaceSegment {
 export interface Mask {
   /** windows as given, µm */
   windows: readonly Window[];
+  /** indices into `windows` in x order */
+  order: number[];
+  /** neighbouring windows in x order, as index pairs into `windows` (left, right) */
+  pairs: [number, number][];
   /** 1 where the surface cell lies in a window */
   open: Uint8Array;
   /** the surface as alternating runs of open and masked cells */
   segments: SurfaceSegment[];
   /** mask edges strictly inside the cross-section, µm, ascending */
   edges: number[];
+}
+
+/** Indices of the windows in x order (by left edge; windows do not overlap). */
+export function windowOrder(windows: readonly Window[]): number[] {
+  return windows.map((_, k) => k).sort((p, q) => windows[p][0] - windows[q][0]);
+}
+
+/** Neighbouring windows in x order, as index pairs into `windows`. */
+function neighbourPairs(windows: readonly Window[]): [number, number][] {
+  const order = windowOrder(windows);
+  const pairs: [number, number][] = [];
+  for (let m = 1; m < order.length; m++) pairs.push([order[m - 1], order[m]]);
+  return pairs;
 }
 
 /** Mask edges that are not side walls; a window that touches a wall has no edge there. */
@@ -41,7 +58,7 @@ export function buildMask(mesh: Mesh, windows: readonly Window[]): Mask {
       start = i;
     }
   }
-  return { windows, open, segments, edges: maskEdges(windows, mesh.widthUm) };
+  return { windows, order: windowOrder(windows), pairs: neighbourPairs(windows), open, segments, edges: maskEdges(windows, mesh.widthUm) };
 }
 
 /**

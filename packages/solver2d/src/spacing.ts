@@ -1,5 +1,6 @@
 import type { ErrorBars, SpacingErrorKey } from './error-bars.ts';
 import { surfaceCrossing, type NodeGrid, type Point, type Polyline } from './junction.ts';
+import type { Window } from './mask.ts';
 import type { Mesh } from './mesh.ts';
 import { reachesBottom, surfaceRegionAt, type Regions } from './region.ts';
 
@@ -23,16 +24,6 @@ export interface PairSpacing {
   merged: boolean;
   /** numerical error of the gaps, µm */
   errors?: ErrorBars<SpacingErrorKey>;
-}
-
-type Window = readonly [number, number];
-
-/** Neighbouring windows in x order, as index pairs into `windows`. */
-export function neighbourPairs(windows: readonly Window[]): [number, number][] {
-  const order = windows.map((_, k) => k).sort((p, q) => windows[p][0] - windows[q][0]);
-  const pairs: [number, number][] = [];
-  for (let m = 1; m < order.length; m++) pairs.push([order[m - 1], order[m]]);
-  return pairs;
 }
 
 /** Squared distance from p to the segment ab. */

@@ -1,6 +1,7 @@
 import { analyze } from './analyze.ts';
 import { richardsonError } from './error-bars.ts';
 import { coarsenedRecipe } from './error-estimate.ts';
+import { windowOrder } from './mask.ts';
 import { planRecipe, type PlanLimits } from './plan.ts';
 import type { Recipe } from './recipe.ts';
 import { simulate } from './simulate.ts';
@@ -52,7 +53,7 @@ const MAX_WIDENINGS = 12;
 
 /** The two-window recipe with a stripe of `stripeUm` between the windows. */
 export function pairRecipe(recipe: Recipe, stripeUm: number): Recipe {
-  const sorted = [...recipe.mask.windows].sort((a, b) => a[0] - b[0]);
+  const sorted = windowOrder(recipe.mask.windows).map((k) => recipe.mask.windows[k]);
   const width = recipe.crossSection.widthUm;
   const [a0, a1] = sorted[0];
   const [b0, b1] = sorted.length > 1 ? sorted[1] : sorted[0];

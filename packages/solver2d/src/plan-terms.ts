@@ -1,0 +1,55 @@
+import type { Dopant, DopantType } from './dopants.ts';
+import type { ImplantSpec } from './implant.ts';
+import type { Step } from './recipe.ts';
+import type { DIFFUSION_MODELS } from './recipe-terms.ts';
+
+/* The parts of a plan that planning, sizing and stepping all read (plan.ts puts them together). */
+
+/** One step of the schedule, in solver units. */
+export interface StepPlan {
+  index: number;
+  kind: Step['kind'];
+  /** as given: fixed, a ramp [start, end], or null for a step with no heat */
+  temperatureC: number | [number, number] | null;
+  startC: number | null;
+  endC: number | null;
+  seconds: number;
+  /** the species this step introduces, if any */
+  dopant: string | null;
+  /** held surface value of a predeposition at a fixed temperature, cm^-3 */
+  surfaceConcentrationCm3: number | null;
+  /** true when the held value follows the solid solubility at the step's temperature */
+  surfaceAtSolubility: boolean;
+  doseCm2: number | null;
+  implant: ImplantSpec | null;
+  /** ∫D dt of every species present during this step (intrinsic D), µm² */
+  budgetUm2: Record<string, number>;
+}
+
+export type DiffusionModel = (typeof DIFFUSION_MODELS)[number];
+
+export interface SpeciesPlan {
+  name: string;
+  type: DopantType;
+  dopant: Dopant;
+  model: DiffusionModel;
+  fieldEnhancement: boolean;
+  /** solid solubility, cm^-3, at a temperature (°C), or a reason it cannot be given */
+  solubility: (temperatureC: number) => number | string;
+}
+
+export interface Numerics {
+  stepGrowth: number;
+  startupSteps: number;
+}
+
+export interface PlanLimits {
+  /** largest number of mesh points accepted (memory ∝ points) */
+  maxMeshPoints: number;
+  /** largest mesh points × time steps accepted (solve time ∝ it: 5–25 ns each, and species, on one core here) */
+  maxPointSteps: number;
+}
+
+/** 4e6 points is about 250 MiB of fields; 1e10 point-steps is a few minutes of solving. */
+export const DEFAULT_LIMITS: PlanLimits = { maxMeshPoints: 4_000_000, maxPointSteps: 1e10 };
+
