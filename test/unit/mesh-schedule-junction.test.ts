@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { gradedAxis, buildMesh, uniformAxis } from '../../packages/solver2d/src/mesh.ts';
 import { geometricSteps } from '../../packages/solver2d/src/schedule.ts';
-import { zeroContours, crossings, wallPaddedGrid } from '../../packages/solver2d/src/junction.ts';
+import { zeroContours, crossings, lateralReach, surfaceCrossing, wallPaddedGrid } from '../../packages/solver2d/src/junction.ts';
 import { parseRecipe, planRecipe } from '../../packages/solver2d/src/index.ts';
 
 const RULE = { fineUm: 0.02, fineReachUm: 0.5, grade: 0.15, maxUm: 0.5 };
@@ -74,5 +74,49 @@ describe('junction finding', () => {
   it('finds every sign change down a column by linear interpolation', () => {
     const z = Float64Array.from([0, 1, 2, 3, 4]);
     expect(crossings(Float64Array.from([1, -1, -1, 1, 1]), z)).toEqual([0.5, 2.5]);
+  });
+  // A region whose boundary is an ellipse centred below the surface (closed form): its widest
+  // extent is the semi-axis A at the depth of the centre zc, beyond the edges x = 1.5 and 2.5.
+  const ellipse = (zc: number) => {
+    const mesh = buildMesh(uniformAxis(4, 400), uniformAxis(2, 100));
+    const f = new Float64Array(mesh.nx * mesh.nz);
+    for (let j = 0; j < mesh.nz; j++) for (let i = 0; i < mesh.nx; i++) f[j * mesh.nx + i] = 1 - ((mesh.x[i] - 2) / 0.8) ** 2 - ((mesh.z[j] - zc) / 0.5) ** 2;
+    return wallPaddedGrid(mesh, f);
+  };
+
+  it('lateral reach of a bulge below the surface: the widest extent and its depth, between rows', () => {
+    const grid = ellipse(0.217);
+    const depth = 0.217 + 0.5;
+    const left = lateralReach(grid, 2, 1.5, -1, 0, depth, 0)!;
+    const right = lateralReach(grid, 2, 2.5, 1, 0, depth, 4)!;
+    // Semi-axis 0.8 beyond the centre: 0.3 beyond each edge, at depth 0.217 (between rows 0.2 and 0.22).
+    // Rows 0.02 µm apart: the widest row alone would be off in depth by up to 0.01 µm.
+    for (const r of [left, right]) {
+      expect(Math.abs(r.reachUm - 0.3)).toBeLessThan(2e-4);
+      expect(Math.abs(r.depthUm - 0.217)).toBeLessThan(2e-3);
+    }
+    // Wider than where the contour meets the surface (0.8·√(1 − (0.217/0.5)²) − 0.5 ≈ 0.2207 µm).
+    expect(1.5 - surfaceCrossing(grid, 2, -1)!).toBeCloseTo(0.8 * Math.sqrt(1 - (0.217 / 0.5) ** 2) - 0.5, 3);
+  });
+
+  it('lateral reach of a region that narrows with depth is its surface crossing, at depth 0, exactly', () => {
+    const mesh = buildMesh(uniformAxis(4, 400), uniformAxis(2, 100));
+    const f = new Float64Array(mesh.nx * mesh.nz);
+    for (let j = 0; j < mesh.nz; j++) for (let i = 0; i < mesh.nx; i++) f[j * mesh.nx + i] = 1 - ((mesh.x[i] - 2) / 0.8) ** 2 - mesh.z[j] / 0.5;
+    const grid = wallPaddedGrid(mesh, f);
+    const left = lateralReach(grid, 2, 1.5, -1, 0, 0.5, 0)!;
+    expect(left).toEqual({ reachUm: 1.5 - surfaceCrossing(grid, 2, -1)!, depthUm: 0 });
+  });
+
+  it('lateral reach of a buried region (an ellipse below the surface): rows between its two junctions', () => {
+    const grid = ellipse(0.8);
+    const r = lateralReach(grid, 2, 1.5, -1, 0.3, 1.3, 0)!;
+    expect(Math.abs(r.reachUm - 0.3)).toBeLessThan(2e-4);
+    expect(Math.abs(r.depthUm - 0.8)).toBeLessThan(2e-3);
+  });
+
+  it('no reach where the region runs past the limit (merged with a neighbour) at some depth', () => {
+    expect(lateralReach(ellipse(0.217), 2, 1.5, -1, 0, 0.717, 1.75)).toBeNull();
+    expect(lateralReach(ellipse(0.217), 2, 2.5, 1, 0, 0.717, 2.75)).toBeNull();
   });
 });

@@ -204,13 +204,50 @@ export function crossings(profile: Float64Array, coordinates: Float64Array): num
   return out;
 }
 
-/** Value of the surface row at x. */
-export function surfaceValueAt(grid: NodeGrid, x: number): number {
+/** Value of row `row` of the grid at x (linear between the neighbouring node columns). */
+export function rowValueAt(grid: NodeGrid, row: number, x: number): number {
   const { xs, values, nx } = grid;
   let i = 0;
   while (i + 2 < nx && xs[i + 1] < x) i++;
   const t = Math.min(1, Math.max(0, (x - xs[i]) / (xs[i + 1] - xs[i])));
-  return (1 - t) * values[i] + t * values[i + 1];
+  const base = row * nx;
+  return (1 - t) * values[base + i] + t * values[base + i + 1];
+}
+
+/** Value of the surface row at x. */
+export function surfaceValueAt(grid: NodeGrid, x: number): number {
+  return rowValueAt(grid, 0, x);
+}
+
+/**
+ * Where row `row` first changes sign going from `from` towards `direction` (−1 left, +1
+ * right), µm; null if it never does before the wall.
+ */
+export function rowCrossing(grid: NodeGrid, row: number, from: number, direction: -1 | 1): number | null {
+  const { xs, values, nx } = grid;
+  const base = row * nx;
+  const start = rowValueAt(grid, row, from);
+  const inside = start > 0;
+  let prevX = from;
+  let prevV = start;
+  if (direction < 0) {
+    for (let i = nx - 1; i >= 0; i--) {
+      if (xs[i] >= from) continue;
+      const v = values[base + i];
+      if ((v > 0) !== inside) return zeroBetween(prevX, xs[i], prevV, v);
+      prevX = xs[i];
+      prevV = v;
+    }
+  } else {
+    for (let i = 0; i < nx; i++) {
+      if (xs[i] <= from) continue;
+      const v = values[base + i];
+      if ((v > 0) !== inside) return zeroBetween(prevX, xs[i], prevV, v);
+      prevX = xs[i];
+      prevV = v;
+    }
+  }
+  return null;
 }
 
 /**
@@ -218,31 +255,81 @@ export function surfaceValueAt(grid: NodeGrid, x: number): number {
  * +1 right), µm; null if it never does before the wall.
  */
 export function surfaceCrossing(grid: NodeGrid, from: number, direction: -1 | 1): number | null {
-  const { xs, values, nx } = grid;
-  const start = surfaceValueAt(grid, from);
-  const inside = start > 0;
-  if (direction < 0) {
-    let prevX = from;
-    let prevV = start;
-    for (let i = nx - 1; i >= 0; i--) {
-      if (xs[i] >= from) continue;
-      const v = values[i];
-      if ((v > 0) !== inside) return zeroBetween(prevX, xs[i], prevV, v);
-      prevX = xs[i];
-      prevV = v;
+  return rowCrossing(grid, 0, from, direction);
+}
+
+/** The largest sideways extent of a junction beyond a mask edge and the depth where it lies, µm. */
+export interface LateralReach {
+  reachUm: number;
+  depthUm: number;
+}
+
+/**
+ * Lateral reach of the junction that bounds a region below a window centre: on every node row
+ * of the region at the centre, from `topUm` (0 for a region at the surface, the upper
+ * junction of a buried one) down to the junction below it (`bottomUm`; null: the bottom of
+ * the grid), the first sign change going from `centre` towards `direction` is the junction's
+ * extent at that depth; the reach is the largest extent beyond `edge` (x0 going left, x1
+ * going right). A profile that falls monotonically with depth (any surface source) has its
+ * widest row at the surface, so there the reach is the surface lateral encroachment itself,
+ * at depth 0; a buried peak (an implant) bulges further below it.
+ *
+ * Between rows the extent e(z) is smooth with a maximum: the parabola through the widest row
+ * and its two neighbours gives the reach and its depth to second order in the row spacing,
+ * where the widest row alone would be short by about e''·h²/8 and off in depth by up to h/2.
+ *
+ * Null when some row meets no sign change before `limit` (a neighbouring window's near edge,
+ * or the wall): there the region has merged with another and has no reach of its own.
+ */
+export function lateralReach(grid: NodeGrid, centre: number, edge: number, direction: -1 | 1,
+                             topUm: number, bottomUm: number | null, limit: number): LateralReach | null {
+  const { zs, nz } = grid;
+  let best = -1;
+  let bestExtent = -Infinity;
+  // Extents of the rows either side of the widest, for the parabola.
+  let before = NaN;
+  let after = NaN;
+  let previous = NaN;
+  let last = -1;
+  for (let j = 0; j < nz; j++) {
+    if (topUm > 0 ? zs[j] <= topUm : zs[j] < 0) continue;
+    if (bottomUm !== null && zs[j] >= bottomUm) break;
+    const x = rowCrossing(grid, j, centre, direction);
+    if (x === null || (direction < 0 ? x <= limit : x >= limit)) return null;
+    const extent = direction < 0 ? edge - x : x - edge;
+    if (extent > bestExtent) {
+      best = j;
+      bestExtent = extent;
+      before = previous;
+      after = NaN;
+    } else if (j === best + 1) {
+      after = extent;
     }
-  } else {
-    let prevX = from;
-    let prevV = start;
-    for (let i = 0; i < nx; i++) {
-      if (xs[i] <= from) continue;
-      const v = values[i];
-      if ((v > 0) !== inside) return zeroBetween(prevX, xs[i], prevV, v);
-      prevX = xs[i];
-      prevV = v;
-    }
+    previous = extent;
+    last = j;
   }
-  return null;
+  if (best < 0) return null;
+  if (best === 0 || best === last || !Number.isFinite(before) || !Number.isFinite(after)) {
+    return { reachUm: bestExtent, depthUm: zs[best] };
+  }
+  return parabolaTop(zs[best - 1], zs[best], zs[best + 1], before, bestExtent, after);
+}
+
+/**
+ * Vertex of the parabola through (z0, e0), (z1, e1), (z2, e2) with e1 the largest: its
+ * slope is (e1 − e0)/(z1 − z0) at the middle of the first interval and changes at the rate
+ * 2a = 2·(s2 − s1)/(z2 − z0).
+ */
+function parabolaTop(z0: number, z1: number, z2: number, e0: number, e1: number, e2: number): LateralReach {
+  const d1 = z1 - z0;
+  const d2 = z2 - z1;
+  const s1 = (e1 - e0) / d1;
+  const s2 = (e2 - e1) / d2;
+  const a = (s2 - s1) / (d1 + d2);
+  if (!(a < 0)) return { reachUm: e1, depthUm: z1 };
+  const slopeAtZ1 = s1 + a * d1;
+  const dz = Math.min(d2, Math.max(-d1, -slopeAtZ1 / (2 * a)));
+  return { reachUm: e1 + slopeAtZ1 * dz + a * dz * dz, depthUm: z1 + dz };
 }
 
 /**
