@@ -1,8 +1,8 @@
 import { engineeringResults, type ReportResults, type WindowResults } from './engineering.ts';
 import { buildField, type Field } from './field.ts';
 import {
-  columnAt, crossings, junctionIndicator, surfaceCrossings, wallPaddedGrid, zeroContours,
-  type NodeGrid, type Polyline,
+  columnAt, crossings, junctionIndicator, lateralReach, surfaceCrossings, wallPaddedGrid, zeroContours,
+  type LateralReach, type NodeGrid, type Polyline,
 } from './junction.ts';
 import { finestX, finestZ } from './mesh.ts';
 import type { LedgerEntry, Simulation } from './simulate.ts';
@@ -24,6 +24,15 @@ export interface WindowReport extends WindowResults {
   /** reach of the surface junction beyond x0 (left) and x1 (right), under the mask, µm */
   lateralLeftUm: number | null;
   lateralRightUm: number | null;
+  /** largest sideways extent of the same junction beyond x0 (left) and x1 (right) at any depth,
+   *  µm: the surface lateral for a surface source, more where the region bulges below the surface
+   *  (an implant); for a buried region that meets no surface, its own widest extent; null once
+   *  merged with a neighbour on that side */
+  lateralReachLeftUm: number | null;
+  lateralReachRightUm: number | null;
+  /** depth where that widest extent lies, µm (0: at the surface) */
+  lateralReachDepthLeftUm: number | null;
+  lateralReachDepthRightUm: number | null;
   /** mean lateral encroachment over junction depth */
   lateralToVerticalRatio: number | null;
   /** |net doping| at the surface at the window centre, cm^-3 */
@@ -97,6 +106,7 @@ export function analyze(sim: Simulation): Analysis {
   const { windows: given, order } = plan.mask;
   const leftLimit = (k: number) => (order.indexOf(k) > 0 ? given[order[order.indexOf(k) - 1]][1] : -Infinity);
   const rightLimit = (k: number) => (order.indexOf(k) < order.length - 1 ? given[order[order.indexOf(k) + 1]][0] : Infinity);
+  const reaches: [LateralReach | null, LateralReach | null][] = [];
   const windows: WindowReport[] = plan.mask.windows.map(([x0, x1], k) => {
     const centre = 0.5 * (x0 + x1);
     const centreColumn = columnAt(grid, centre, column);
@@ -116,6 +126,16 @@ export function analyze(sim: Simulation): Analysis {
     }));
     const lateralLeft = depth !== null && lefts.length > 0 ? x0 - lefts[0] : null;
     const lateralRight = depth !== null && rights.length > 0 ? rights[0] - x1 : null;
+    // The reach of the junction that meets the surface (rows from the surface down to it), or,
+    // where no junction meets the surface, of a buried region's (rows between its two junctions).
+    const buried = lefts.length === 0 && rights.length === 0 && depths.length > 0 && !(centreColumn[0] > 0);
+    const rows: [number, number | null] | null = lateralLeft !== null || lateralRight !== null
+      ? [0, depth] : buried ? [depths[0], depths.length > 1 ? depths[1] : null] : null;
+    const reachOf = (side: number | null, edge: number, direction: -1 | 1, limit: number): LateralReach | null =>
+      rows === null || (side === null && !buried) ? null : lateralReach(grid, centre, edge, direction, rows[0], rows[1], limit);
+    const reachLeft = reachOf(lateralLeft, x0, -1, leftLimit(k));
+    const reachRight = reachOf(lateralRight, x1, 1, rightLimit(k));
+    reaches.push([reachLeft, reachRight]);
     const lateralMean = lateralLeft !== null && lateralRight !== null ? 0.5 * (lateralLeft + lateralRight) : lateralLeft ?? lateralRight;
     const surfaceBySpecies: Record<string, number> = {};
     const centreDose: Record<string, number> = {};
@@ -131,6 +151,10 @@ export function analyze(sim: Simulation): Analysis {
       junctionStack: stack,
       lateralLeftUm: lateralLeft === null ? null : rounded(lateralLeft),
       lateralRightUm: lateralRight === null ? null : rounded(lateralRight),
+      lateralReachLeftUm: reachLeft === null ? null : rounded(reachLeft.reachUm),
+      lateralReachRightUm: reachRight === null ? null : rounded(reachRight.reachUm),
+      lateralReachDepthLeftUm: reachLeft === null ? null : rounded(reachLeft.depthUm),
+      lateralReachDepthRightUm: reachRight === null ? null : rounded(reachRight.depthUm),
       lateralToVerticalRatio: depth && lateralMean !== null ? rounded(lateralMean / depth, 4) : null,
       surfaceConcentrationCm3: rounded(Math.abs(columnAt(netGrid, centre, column)[0])),
       surfaceBySpeciesCm3: surfaceBySpecies,
@@ -141,7 +165,7 @@ export function analyze(sim: Simulation): Analysis {
   const doseCm2: Record<string, number> = {};
   for (const s of plan.species) doseCm2[s.name] = rounded(sim.ledger[s.name].inSiliconCm2);
 
-  const results = engineeringResults(sim, field, grid);
+  const results = engineeringResults(sim, field, grid, reaches);
   const report: Report = {
     schema: REPORT_SCHEMA_ID,
     title: recipe.title ?? null,

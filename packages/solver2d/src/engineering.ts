@@ -1,7 +1,7 @@
 import { edgeCurvature } from './curvature.ts';
 import type { ErrorBars, ErrorEstimateSummary, WindowErrorKey } from './error-bars.ts';
 import type { Field } from './field.ts';
-import { columnAt, crossings, surfaceCrossing, wallPaddedGrid, zeroContours, type NodeGrid } from './junction.ts';
+import { columnAt, crossings, surfaceCrossing, wallPaddedGrid, zeroContours, type LateralReach, type NodeGrid } from './junction.ts';
 import { fitForDopant, type Carrier, type MobilityFit } from './mobility.ts';
 import { invertedNodes, labelRegions, reachesBottom, surfaceRegionAt, type Regions } from './region.ts';
 import { effectiveWidthUm, layerConductanceS, lineResistanceOhmPerUm, regionConductance } from './resistance.ts';
@@ -34,7 +34,9 @@ export interface WindowResults {
   lineResistanceOhmPerUm?: number | null;
   /** width that carries the line's conductance at the centre's sheet resistance, µm */
   effectiveWidthUm?: number | null;
-  /** drawn width plus the lateral encroachment on both sides, µm, for comparison */
+  /** drawn width plus the lateral encroachment on both sides, µm, for comparison: the lateral
+   *  reach at any depth where it is known (larger than the surface lateral where the junction
+   *  bulges below the surface), the surface lateral where it is not */
   drawnPlusLateralUm?: number | null;
   /** radius of curvature of the junction where it turns under the left and right mask edge, µm */
   curvatureRadiusLeftUm?: number | null;
@@ -121,6 +123,18 @@ function substrateOppositeFit(sim: Simulation): MobilityFit {
   return fitForDopant(majority, carrier);
 }
 
+/**
+ * Drawn width plus the encroachment on both sides: the lateral reach at any depth where both
+ * are known (the wider of the two measures), else the span of the surface crossings.
+ */
+function drawnPlusLateral(x0: number, x1: number, left: number | null, right: number | null,
+                          reach: readonly [LateralReach | null, LateralReach | null] | undefined): number | null {
+  if (left === null || right === null) return null;
+  const [l, r] = reach ?? [null, null];
+  if (l !== null && r !== null) return rounded(Math.max(right - left, x1 - x0 + l.reachUm + r.reachUm));
+  return rounded(right - left);
+}
+
 function noResults(): WindowResults {
   return {
     sheetResistanceOhmSq: null, lineResistanceOhmPerUm: null, effectiveWidthUm: null, drawnPlusLateralUm: null,
@@ -128,7 +142,9 @@ function noResults(): WindowResults {
   };
 }
 
-export function engineeringResults(sim: Simulation, field: Field, grid: NodeGrid): EngineeringResults {
+/** `reaches`: per window, the lateral reach beyond its left and right edge (analyze.ts), where known. */
+export function engineeringResults(sim: Simulation, field: Field, grid: NodeGrid,
+                                   reaches: readonly (readonly [LateralReach | null, LateralReach | null])[] = []): EngineeringResults {
   const { mesh } = field;
   const windows = sim.plan.mask.windows;
   const inverted = invertedNodes(field.donors, field.acceptors, sim.plan.substrate.type);
@@ -154,7 +170,7 @@ export function engineeringResults(sim: Simulation, field: Field, grid: NodeGrid
   const indicatorColumn = new Float64Array(mesh.nz);
   let topFit: MobilityFit | null = null;
 
-  const perWindow = windows.map(([x0, x1]): WindowResults => {
+  const perWindow = windows.map(([x0, x1], windowIndex): WindowResults => {
     const centre = 0.5 * (x0 + x1);
     const column = columnAt(grid, centre, indicatorColumn);
     const depths = crossings(column, mesh.z);
@@ -196,7 +212,7 @@ export function engineeringResults(sim: Simulation, field: Field, grid: NodeGrid
       sheetResistanceOhmSq: rounded(1 / sheet),
       lineResistanceOhmPerUm: rounded(lineResistanceOhmPerUm(area)),
       effectiveWidthUm: rounded(effectiveWidthUm(area, sheet)),
-      drawnPlusLateralUm: left !== null && right !== null ? rounded(right - left) : null,
+      drawnPlusLateralUm: drawnPlusLateral(x0, x1, left, right, reaches[windowIndex]),
       curvatureRadiusLeftUm: rounded(radius(left)),
       curvatureRadiusRightUm: rounded(radius(right)),
       layerStack: layers.map((l) => ({

@@ -20,7 +20,8 @@ const MIN_CREDIBLE_ORDER = 0.5;
 
 /** Window fields that get an error bar (lengths, and the resistances as well). */
 export const WINDOW_ERROR_KEYS = [
-  'junctionDepthUm', 'lateralLeftUm', 'lateralRightUm', 'effectiveWidthUm', 'drawnPlusLateralUm',
+  'junctionDepthUm', 'lateralLeftUm', 'lateralRightUm', 'lateralReachLeftUm', 'lateralReachRightUm',
+  'lateralReachDepthLeftUm', 'lateralReachDepthRightUm', 'effectiveWidthUm', 'drawnPlusLateralUm',
   'curvatureRadiusLeftUm', 'curvatureRadiusRightUm', 'sheetResistanceOhmSq', 'lineResistanceOhmPerUm',
 ] as const;
 export const SPACING_ERROR_KEYS = ['surfaceGapUm', 'minimumGapUm', 'minimumGapDepthUm'] as const;
