@@ -15,12 +15,13 @@ import { buildMatrix, runRecipe, type SweepMatrix, type SweepRun } from '../swee
 import { workerBundle, WorkerPool } from '../sweep/pool.ts';
 import { SWEEP_SCHEMA_ID, writeSweepFiles, type SweepDocument } from '../sweep/record.ts';
 import { finishedRun, removeStaleTemps } from '../sweep/resume.ts';
-import { inShard, parseShard, sweepStem, type Shard } from '../sweep/shard.ts';
+import { indexedJobManifest, planSummary, slurmScript, type PlanRequest } from '../sweep/plan.ts';
+import { inShard, parseShard, parseShardCount, shardFromEnvironment, sweepStem, type Shard } from '../sweep/shard.ts';
 import type { ErrorSolves } from '../sweep/task.ts';
 
 export const SWEEP_USAGE =
-  'edgewise sweep RECIPE [--widths RANGE] [--set PATH=VALUES]… [--out DIR] [--jobs N] [--error-solves 0|1|2] [--resume] [--shard K/N] ' +
-  `${LIMITS_USAGE} [--quiet]`;
+  'edgewise sweep RECIPE [--widths RANGE] [--set PATH=VALUES]… [--out DIR] [--jobs N] [--error-solves 0|1|2] [--resume] [--shard K/N|auto [--shards N]] ' +
+  `${LIMITS_USAGE} [--quiet] [--plan [--shards N] [--scheduler slurm|kubernetes]]`;
 
 /** Exit codes beyond main.ts's 0 (ok), 1 (internal failure) and 2 (bad input). */
 export const EXIT_RUNS_FAILED = 3;
@@ -59,6 +60,9 @@ export async function sweepCommand(args: string[]): Promise<number> {
       'error-solves': { type: 'string' },
       resume: { type: 'boolean', default: false },
       shard: { type: 'string' },
+      shards: { type: 'string' },
+      plan: { type: 'boolean', default: false },
+      scheduler: { type: 'string' },
       quiet: { type: 'boolean', default: false },
       ...LIMIT_OPTIONS,
     },
@@ -68,7 +72,12 @@ export async function sweepCommand(args: string[]): Promise<number> {
   const jobs = parseJobs(values.jobs);
   const errorSolves = parseErrorSolves(values['error-solves'], 'per run');
   const limits = parseLimits(values);
-  const shard = values.shard === undefined ? null : parseShard(values.shard);
+  const shards = parseShardCount(values.shards);
+  if (values.plan) return planCommand(recipePath, values, shards);
+  if (values.scheduler !== undefined) throw new UsageError('--scheduler goes with --plan (it picks the file the plan prints)');
+  const auto = values.shard?.trim() === 'auto';
+  if (shards !== null && !auto) throw new UsageError('--shards N goes with --shard auto (the count of a Kubernetes indexed job) or with --plan');
+  const shard = values.shard === undefined ? null : auto ? shardFromEnvironment(process.env, shards) : parseShard(values.shard);
   const out = values.out ?? defaultSweepFolder(recipePath);
   if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${out}: is a file, not a folder`);
   // The workers start now and load the solver while every run is planned below; on bad
@@ -81,6 +90,46 @@ export async function sweepCommand(args: string[]): Promise<number> {
   } finally {
     await pool.close();
   }
+}
+
+/** The shards a plan splits into when --shards is not given: one a run, at most this many. */
+export const DEFAULT_PLAN_SHARDS = 10;
+
+/**
+ * `--plan`: every run is built and checked as for a sweep, then the split and the scheduler
+ * files are printed; nothing is written and no run starts.
+ */
+function planCommand(recipePath: string, values: Record<string, string | string[] | boolean | undefined>, shards: number | null): number {
+  const scheduler = values.scheduler as string | undefined;
+  if (scheduler !== undefined && scheduler !== 'slurm' && scheduler !== 'kubernetes') {
+    throw new UsageError(`--scheduler ${JSON.stringify(scheduler)}: expected slurm or kubernetes`);
+  }
+  if (values.shard !== undefined || values.resume) throw new UsageError('--plan prints the commands that run the shards; leave out --shard and --resume');
+  const limits = parseLimits(values as Parameters<typeof parseLimits>[0]);
+  const jobs = values.jobs === undefined ? 1 : parseJobs(values.jobs as string);
+  if (values['error-solves'] !== undefined) parseErrorSolves(values['error-solves'] as string, 'per run');
+  const widths = values.widths as string | undefined;
+  const set = values.set as string[];
+  const matrix = buildMatrix(readRecipeFile(recipePath), { widths, set, limits });
+  const sweepArgs = [resolve(recipePath)];
+  if (widths !== undefined) sweepArgs.push('--widths', widths);
+  for (const s of set) sweepArgs.push('--set', s);
+  for (const option of ['error-solves', 'max-mesh-points', 'max-point-steps']) {
+    if (values[option] !== undefined) sweepArgs.push(`--${option}`, values[option] as string);
+  }
+  const request: PlanRequest = {
+    matrix, shards: shards ?? Math.min(matrix.runs.length, DEFAULT_PLAN_SHARDS), jobs,
+    cwd: process.cwd(), launcher: [process.execPath, resolve(process.argv[1])], sweepArgs,
+    out: resolve((values.out as string | undefined) ?? defaultSweepFolder(recipePath)),
+  };
+  if (scheduler === 'slurm') process.stdout.write(slurmScript(request));
+  else if (scheduler === 'kubernetes') process.stdout.write(indexedJobManifest(request));
+  else {
+    process.stdout.write(`${planSummary(request)}\n\n` +
+      `# ---- Slurm: save as a file and run it with bash (or print it alone with --scheduler slurm) ----\n${slurmScript(request)}\n` +
+      `# ---- Kubernetes: save as a file for kubectl (or print it alone with --scheduler kubernetes) ----\n${indexedJobManifest(request)}`);
+  }
+  return 0;
 }
 
 interface SweepOptions {
