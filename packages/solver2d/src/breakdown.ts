@@ -196,7 +196,7 @@ export interface BreakdownResult {
 export function searchBreakdown(solver: PoissonSolver, lines: FieldLines, model: IonisationModel, guessV: number): BreakdownResult {
   const net = solver.problem.net;
   const evaluate = (v: number): { ln: number; x: number; z: number } | null => {
-    const out = solver.continueTo(v, Math.max(1, 0.25 * Math.abs(v - solver.biasV)));
+    const out = solver.continueTo(v, Math.max(1, Math.abs(v - solver.biasV)));
     if (!out.converged) return null;
     lines.update(solver.psi);
     const best = lines.largestIntegral(model, net);

@@ -96,8 +96,14 @@ export interface NewtonOutcome {
 /** Newton converges when the largest update is below this, V. */
 const NEWTON_TOLERANCE_V = 1e-7;
 const MAX_NEWTON = 60;
-/** Conjugate gradients stop when the preconditioned residual has fallen by this factor. */
-const CG_TOLERANCE = 1e-10;
+/**
+ * Conjugate gradients stop when the preconditioned residual has fallen by this factor: loose
+ * inside Newton (an inexact Newton step still converges, at a rate no worse than the factor;
+ * Dembo, Eisenstat & Steihaug, SIAM J. Numer. Anal. 19 (1982) 400, from memory), tight for the
+ * tangent, which the capacitance is read from.
+ */
+const CG_NEWTON_TOLERANCE = 1e-4;
+const CG_TANGENT_TOLERANCE = 1e-10;
 
 /**
  * Newton's method on the finite-volume residual with a backtracking line search on its norm.
@@ -171,34 +177,11 @@ export class PoissonSolver {
 
   /** Residual of `psi` at bias V into `out`; returns its 2-norm. Fills the Jacobian's diagonal when `jacobian`. */
   private evaluate(psi: Float64Array, biasV: number, out: Float64Array, jacobian: boolean): number {
-    const { nx, nz } = this.problem.mesh;
-    const { contact, net } = this.problem;
-    const { tx, tz, volume, diag } = this;
-    let sum = 0;
-    for (let k = 0; k < this.n; k++) {
-      if (contact[k] === 1) {
-        out[k] = 0;
-        if (jacobian) diag[k] = 1;
-        continue;
-      }
-      const i = k % nx;
-      const j = (k - i) / nx;
-      const pk = psi[k];
-      let flux = 0;
-      let coupling = 0;
-      if (i > 0) { flux += tx[k - 1] * (pk - psi[k - 1]); coupling += tx[k - 1]; }
-      if (i + 1 < nx) { flux += tx[k] * (pk - psi[k + 1]); coupling += tx[k]; }
-      if (j > 0) { flux += tz[k - nx] * (pk - psi[k - nx]); coupling += tz[k - nx]; }
-      if (j + 1 < nz) { flux += tz[k] * (pk - psi[k + nx]); coupling += tz[k]; }
-      const e = this.electrons(pk, k, biasV);
-      const h = this.holes(pk, k, biasV);
-      const v = volume[k] * KAPPA;
-      const rk = flux - v * (h - e + net[k]);
-      out[k] = rk;
-      sum += rk * rk;
-      if (jacobian) diag[k] = coupling + (v * (e + h)) / THERMAL_VOLTAGE_V;
-    }
-    return Math.sqrt(sum);
+    const { nx } = this.problem.mesh;
+    const { contact, net, shifted, sign } = this.problem;
+    const phiN = sign > 0 ? biasV : 0;
+    const phiP = sign < 0 ? -biasV : 0;
+    return residualKernel(psi, out, jacobian ? this.diag : null, net, contact, shifted, phiN, phiP, this.tx, this.tz, this.volume, nx);
   }
 
   /** Sets the contacts to their value at bias V. */
@@ -216,7 +199,7 @@ export class PoissonSolver {
     let last = Infinity;
     for (let it = 1; it <= MAX_NEWTON; it++) {
       for (let k = 0; k < this.n; k++) residual[k] = -residual[k];
-      linear += this.solveLinear(residual, step);
+      linear += this.solveLinear(residual, step, CG_NEWTON_TOLERANCE);
       let lambda = 1;
       let trialNorm = Infinity;
       for (let halvings = 0; halvings < 30; halvings++) {
@@ -261,7 +244,7 @@ export class PoissonSolver {
       if (j + 1 < nz && contact[k + nx] === 1) rhs += this.tz[k] * this.contactShift[k + nx];
       residual[k] = rhs;
     }
-    const iterations = this.solveLinear(residual, slope);
+    const iterations = this.solveLinear(residual, slope, CG_TANGENT_TOLERANCE);
     for (let k = 0; k < this.n; k++) if (contact[k] === 1) slope[k] = this.contactShift[k];
     return iterations;
   }
@@ -292,8 +275,8 @@ export class PoissonSolver {
         stepV *= 0.5;
         continue;
       }
-      if (out.iterations <= 4) stepV *= 2;
-      else if (out.iterations > 8) stepV *= 0.5;
+      if (out.iterations <= 5) stepV *= 2;
+      else if (out.iterations > 9) stepV *= 0.5;
     }
     return { ...total, steps };
   }
@@ -348,41 +331,98 @@ export class PoissonSolver {
   }
 
   /** Preconditioned conjugate gradients on J·x = b (contacts excluded); returns the iterations. */
-  private solveLinear(b: Float64Array, x: Float64Array): number {
+  private solveLinear(b: Float64Array, x: Float64Array, tolerance: number): number {
     const { nx } = this.problem.mesh;
     const { contact } = this.problem;
     const { r, zv, pv, qv, diag, factor, tx, tz } = this;
     const n = this.n;
     incompleteCholesky(diag, tx, tz, contact, nx, factor);
     x.fill(0);
-    r.set(b);
-    let bnorm = 0;
-    for (let k = 0; k < n; k++) {
-      if (contact[k] === 1) r[k] = 0;
-      bnorm += r[k] * r[k];
-    }
-    if (bnorm === 0) return 0;
+    if (freeRows(b, r, contact) === 0) return 0;
     applyPreconditioner(r, zv, factor, tx, tz, contact, nx);
     pv.set(zv);
     let rz = dot(r, zv);
-    const target = rz * CG_TOLERANCE * CG_TOLERANCE;
+    const target = rz * tolerance * tolerance;
     let it = 0;
     for (it = 1; it <= 4 * n + 50; it++) {
       multiply(pv, qv, diag, tx, tz, contact, nx);
       const alpha = rz / dot(pv, qv);
-      for (let k = 0; k < n; k++) {
-        x[k] += alpha * pv[k];
-        r[k] -= alpha * qv[k];
-      }
+      updateSolution(x, r, pv, qv, alpha);
       applyPreconditioner(r, zv, factor, tx, tz, contact, nx);
       const rzNext = dot(r, zv);
       if (rzNext <= target) break;
-      const beta = rzNext / rz;
+      updateDirection(pv, zv, rzNext / rz);
       rz = rzNext;
-      for (let k = 0; k < n; k++) pv[k] = zv[k] + beta * pv[k];
     }
     return it;
   }
+}
+
+// Each loop of the conjugate-gradient iteration is a function of its own: a loop compiled
+// mid-call before the code after it had run deoptimised on every later call (seen as ten
+// times slower iterations under --trace-deopt).
+
+/** x += α·p; r −= α·q (r flushed to 0 below 1e-200: subnormal numbers are slow). */
+function updateSolution(x: Float64Array, r: Float64Array, p: Float64Array, q: Float64Array, alpha: number): void {
+  for (let k = 0; k < x.length; k++) {
+    x[k] += alpha * p[k];
+    const v = r[k] - alpha * q[k];
+    r[k] = v > 1e-200 || v < -1e-200 ? v : 0;
+  }
+}
+
+/** p = z + β·p */
+function updateDirection(p: Float64Array, z: Float64Array, beta: number): void {
+  for (let k = 0; k < p.length; k++) {
+    const v = z[k] + beta * p[k];
+    p[k] = v > 1e-200 || v < -1e-200 ? v : 0;
+  }
+}
+
+/**
+ * The finite-volume residual R = Σ T·(ψ_k − ψ_l) − κ·V·(p − n + N) at every free node (0 at
+ * contacts) and, given `diag`, the Jacobian's diagonal Σ T + κ·V·(n + p)/Vt. The quasi-Fermi
+ * levels are φ·shifted for each carrier. Returns ‖R‖₂.
+ */
+function residualKernel(psi: Float64Array, out: Float64Array, diag: Float64Array | null, net: Float64Array, contact: Uint8Array, shifted: Uint8Array,
+  phiN: number, phiP: number, tx: Float64Array, tz: Float64Array, volume: Float64Array, nx: number): number {
+  const n = psi.length;
+  let sum = 0;
+  for (let k = 0; k < n; k++) {
+    if (contact[k] === 1) {
+      out[k] = 0;
+      if (diag !== null) diag[k] = 1;
+      continue;
+    }
+    const i = k % nx;
+    const pk = psi[k];
+    let flux = 0;
+    let coupling = 0;
+    if (i > 0) { flux += tx[k - 1] * (pk - psi[k - 1]); coupling += tx[k - 1]; }
+    if (i + 1 < nx) { flux += tx[k] * (pk - psi[k + 1]); coupling += tx[k]; }
+    if (k >= nx) { flux += tz[k - nx] * (pk - psi[k - nx]); coupling += tz[k - nx]; }
+    if (k + nx < n) { flux += tz[k] * (pk - psi[k + nx]); coupling += tz[k]; }
+    const s = shifted[k];
+    const e = INTRINSIC_300K_CM3 * Math.exp(clampExp((pk - phiN * s) / THERMAL_VOLTAGE_V));
+    const h = INTRINSIC_300K_CM3 * Math.exp(clampExp((phiP * s - pk) / THERMAL_VOLTAGE_V));
+    const v = volume[k] * KAPPA;
+    const rk = flux - v * (h - e + net[k]);
+    out[k] = rk;
+    sum += rk * rk;
+    if (diag !== null) diag[k] = coupling + (v * (e + h)) / THERMAL_VOLTAGE_V;
+  }
+  return Math.sqrt(sum);
+}
+
+/** The right-hand side with the contacts' rows zeroed; returns its squared norm. */
+function freeRows(b: Float64Array, r: Float64Array, contact: Uint8Array): number {
+  let sum = 0;
+  for (let k = 0; k < r.length; k++) {
+    const v = contact[k] === 1 ? 0 : b[k];
+    r[k] = v;
+    sum += v * v;
+  }
+  return sum;
 }
 
 function clampExp(a: number): number {
@@ -425,6 +465,11 @@ function incompleteCholesky(diag: Float64Array, tx: Float64Array, tz: Float64Arr
 
 /** z = M⁻¹·r: forward (D + L)w = r, then (D + Lᵀ)z = D·w. */
 function applyPreconditioner(r: Float64Array, z: Float64Array, d: Float64Array, tx: Float64Array, tz: Float64Array, contact: Uint8Array, nx: number): void {
+  forwardSweep(r, z, d, tx, tz, contact, nx);
+  backwardSweep(z, d, tx, tz, contact, nx);
+}
+
+function forwardSweep(r: Float64Array, z: Float64Array, d: Float64Array, tx: Float64Array, tz: Float64Array, contact: Uint8Array, nx: number): void {
   const n = r.length;
   for (let k = 0; k < n; k++) {
     if (contact[k] === 1) { z[k] = 0; continue; }
@@ -432,15 +477,22 @@ function applyPreconditioner(r: Float64Array, z: Float64Array, d: Float64Array, 
     let s = r[k];
     if (i > 0 && contact[k - 1] === 0) s += tx[k - 1] * z[k - 1];
     if (k >= nx && contact[k - nx] === 0) s += tz[k - nx] * z[k - nx];
-    z[k] = s / d[k];
+    // Flushed below 1e-200: the sweep decays geometrically through a heavily doped region.
+    const v = s / d[k];
+    z[k] = v > 1e-200 || v < -1e-200 ? v : 0;
   }
+}
+
+function backwardSweep(z: Float64Array, d: Float64Array, tx: Float64Array, tz: Float64Array, contact: Uint8Array, nx: number): void {
+  const n = z.length;
   for (let k = n - 1; k >= 0; k--) {
     if (contact[k] === 1) continue;
     const i = k % nx;
     let s = 0;
     if (i + 1 < nx && contact[k + 1] === 0) s += tx[k] * z[k + 1];
     if (k + nx < n && contact[k + nx] === 0) s += tz[k] * z[k + nx];
-    z[k] += s / d[k];
+    const v = z[k] + s / d[k];
+    z[k] = v > 1e-200 || v < -1e-200 ? v : 0;
   }
 }
 

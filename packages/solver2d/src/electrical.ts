@@ -1,0 +1,235 @@
+import { FieldLines, searchBreakdown } from './breakdown.ts';
+import { depletionDepthUm, depletionReachUm } from './depletion.ts';
+import { PoissonSolver, poissonMesh, SILICON_PERMITTIVITY_F_PER_CM, ELEMENTARY_CHARGE_C, type JunctionProblem, type PoissonMesh } from './electrostatics.ts';
+import { VAN_OVERSTRAETEN_DE_MAN, type IonisationModel } from './ionisation.ts';
+import type { Mesh } from './mesh.ts';
+import { areaCapacitanceFPerCm2, planeProblem } from './plane-junction.ts';
+import { labelRegions } from './region.ts';
+
+/**
+ * The electrical rules of a diffused region at room temperature: each window's region held at
+ * a reverse bias against the region that contains it (the substrate, or a well), on the final
+ * doping of the diffusion. Per bias: the depletion edges below the centre and sideways past
+ * the mask edge, the peak field and where it is, the area capacitance below the centre (the
+ * plane junction of the centre's column) and the perimeter capacitance per length of mask
+ * edge, by charge partition: the region's whole small-signal capacitance per length of stripe
+ * less the area part times the drawn width, shared between the window's edges. Then the
+ * breakdown voltage of the region and of the plane junction below its centre.
+ */
+
+export interface ElectricalOptions {
+  biasV: readonly number[];
+  model?: IonisationModel;
+  /** smallest node spacing kept from the diffusion mesh, µm (default 2.5× its finest) */
+  minSpacingUm?: number;
+  /** leave out the breakdown searches (their fields stay null) */
+  skipBreakdown?: boolean;
+}
+
+export interface WindowElectrical {
+  /** which region the window's region is biased against */
+  biasAgainst: 'substrate' | 'well';
+  breakdownV: number | null;
+  breakdownPlaneV: number | null;
+  breakdownLimitedBy: 'edge' | 'plane' | null;
+  /** per bias */
+  peakFieldVPerCm: (number | null)[];
+  peakFieldAtUm: ([number, number] | null)[];
+  depletionDepthUm: (number | null)[];
+  depletionLateralUm: (number | null)[];
+  areaCapacitanceFPerCm2: (number | null)[];
+  perimeterCapacitanceFPerCm: (number | null)[];
+}
+
+export interface ElectricalResult {
+  windows: (WindowElectrical | null)[];
+  warnings: string[];
+  /** the electrostatic mesh, nodes */
+  columns: number;
+  rows: number;
+}
+
+/** Nodes of `axis` kept so that neighbours are at least `minUm` apart (the last node always kept). */
+export function thinnedAxis(axis: Float64Array, minUm: number): Int32Array {
+  const kept: number[] = [0];
+  for (let i = 1; i < axis.length - 1; i++) if (axis[i] - axis[kept[kept.length - 1]] >= minUm * (1 - 1e-9)) kept.push(i);
+  if (axis.length > 1) {
+    if (axis[axis.length - 1] - axis[kept[kept.length - 1]] < 0.5 * minUm && kept.length > 1) kept.pop();
+    kept.push(axis.length - 1);
+  }
+  return Int32Array.from(kept);
+}
+
+/** Depletion width of a one-sided abrupt junction on doping N at V, µm (Sze & Ng (2007) ch. 2). */
+function abruptWidthUm(n: number, v: number): number {
+  return Math.sqrt((2 * SILICON_PERMITTIVITY_F_PER_CM * (v + 1)) / (ELEMENTARY_CHARGE_C * n)) * 1e4;
+}
+
+/** Baliga's one-sided abrupt breakdown law, V and µm (Fundamentals of Power Semiconductor Devices; from memory): a starting guess. */
+function baligaGuess(n: number): { volts: number; widthUm: number } {
+  return { volts: 5.34e13 * n ** -0.75, widthUm: 2.67e10 * n ** -0.875 * 1e4 };
+}
+
+interface ElectrostaticGrid {
+  mesh: PoissonMesh;
+  net: Float64Array;
+}
+
+/**
+ * The diffusion mesh thinned to `minUm` and extended below its bottom to `depthUm`, with the
+ * bottom row's doping (rows growing by 1.25 up to `largestUm` apart).
+ */
+function electrostaticGrid(mesh: Mesh, net: Float64Array, minUm: number, depthUm: number, largestUm: number): ElectrostaticGrid {
+  const xi = thinnedAxis(mesh.x, minUm);
+  const zi = thinnedAxis(mesh.z, minUm);
+  const zs: number[] = Array.from(zi, (j) => mesh.z[j]);
+  let step = zs[zs.length - 1] - zs[zs.length - 2];
+  while (zs[zs.length - 1] < depthUm) {
+    step = Math.min(step * 1.25, Math.max(minUm, largestUm));
+    zs.push(zs[zs.length - 1] + step);
+  }
+  const x = Float64Array.from(xi, (i) => mesh.x[i]);
+  const z = Float64Array.from(zs);
+  const nx = x.length;
+  const values = new Float64Array(nx * z.length);
+  for (let j = 0; j < z.length; j++) {
+    const row = j < zi.length ? zi[j] : mesh.nz - 1;
+    for (let i = 0; i < nx; i++) values[j * nx + i] = net[row * mesh.nx + xi[i]];
+  }
+  return { mesh: poissonMesh(x, z, 0, mesh.widthUm), net: values };
+}
+
+/** Connected same-sign components: label of each node (n-type and p-type labelled apart). */
+function signComponents(net: Float64Array, nx: number, nz: number): { labels: Int32Array; bottom: Uint8Array } {
+  const positive = new Uint8Array(net.length);
+  const negative = new Uint8Array(net.length);
+  for (let k = 0; k < net.length; k++) {
+    positive[k] = net[k] > 0 ? 1 : 0;
+    negative[k] = net[k] > 0 ? 0 : 1;
+  }
+  const a = labelRegions(positive, nx, nz);
+  const b = labelRegions(negative, nx, nz);
+  const labels = new Int32Array(net.length);
+  for (let k = 0; k < net.length; k++) labels[k] = a.labels[k] > 0 ? a.labels[k] : a.count + b.labels[k];
+  const bottom = new Uint8Array(a.count + b.count + 1);
+  for (let k = (nz - 1) * nx; k < nz * nx; k++) bottom[labels[k]] = 1;
+  return { labels, bottom };
+}
+
+function nearestIndex(axis: Float64Array, v: number): number {
+  let best = 0;
+  for (let i = 1; i < axis.length; i++) if (Math.abs(axis[i] - v) < Math.abs(axis[best] - v)) best = i;
+  return best;
+}
+
+function rounded(v: number | null, digits = 5): number | null {
+  return v === null || !Number.isFinite(v) ? null : Number(v.toPrecision(digits));
+}
+
+export function electricalResults(mesh: Mesh, net: Float64Array, windows: readonly (readonly [number, number])[], options: ElectricalOptions): ElectricalResult {
+  const model = options.model ?? VAN_OVERSTRAETEN_DE_MAN;
+  const biases = [...options.biasV];
+  const minUm = options.minSpacingUm ?? 2.5 * Math.min(finest(mesh.x), finest(mesh.z));
+  // The deepest depletion to hold: the larger of the highest bias's and breakdown's, on the doping at the bottom.
+  const bottomN = Math.max(Math.abs(net[(mesh.nz - 1) * mesh.nx]), 1e12);
+  const reach = Math.max(abruptWidthUm(bottomN, Math.max(0, ...biases)), baligaGuess(bottomN).widthUm);
+  // Rows added below at most 1/30 of that depletion apart.
+  const grid = electrostaticGrid(mesh, net, minUm, mesh.depthUm + 1.2 * reach, reach / 30);
+  const { nx, nz } = grid.mesh;
+  const components = signComponents(grid.net, nx, nz);
+  const warnings: string[] = [];
+  const results = windows.map(([x0, x1]) => {
+    const centre = 0.5 * (x0 + x1);
+    const ic = nearestIndex(grid.mesh.x, centre);
+    const label = components.labels[ic];
+    if (components.bottom[label] === 1 || grid.net[ic] === 0) return null;
+    const problem = windowProblem(grid, components.labels, label, x0, x1);
+    const result = solveWindow(grid, problem, ic, x0, x1, mesh.widthUm, biases, model, warnings, options.skipBreakdown === true);
+    // The region below: substrate if it reaches the bottom.
+    let j = 0;
+    while (j < nz && components.labels[j * nx + ic] === label) j++;
+    result.biasAgainst = j < nz && components.bottom[components.labels[j * nx + ic]] === 1 ? 'substrate' : 'well';
+    return result;
+  });
+  return { windows: results, warnings, columns: nx, rows: nz };
+}
+
+function finest(axis: Float64Array): number {
+  let h = Infinity;
+  for (let i = 1; i < axis.length; i++) h = Math.min(h, axis[i] - axis[i - 1]);
+  return h;
+}
+
+function windowProblem(grid: ElectrostaticGrid, labels: Int32Array, label: number, x0: number, x1: number): JunctionProblem {
+  const { nx, nz, x } = grid.mesh;
+  const n = nx * nz;
+  const sign = grid.net[labels.indexOf(label)] > 0 ? 1 : -1;
+  const biased = new Uint8Array(n);
+  const shifted = new Uint8Array(n);
+  const contact = new Uint8Array(n);
+  for (let k = 0; k < n; k++) {
+    biased[k] = labels[k] === label ? 1 : 0;
+    const sameType = sign > 0 ? grid.net[k] > 0 : !(grid.net[k] > 0);
+    shifted[k] = biased[k] === 1 || !sameType ? 1 : 0;
+  }
+  for (let i = 0; i < nx; i++) {
+    contact[(nz - 1) * nx + i] = 1;
+    if (x[i] >= x0 && x[i] <= x1 && biased[i] === 1) contact[i] = 1;
+  }
+  return { mesh: grid.mesh, net: grid.net, contact, shifted, biased, sign: sign as 1 | -1 };
+}
+
+function solveWindow(grid: ElectrostaticGrid, problem: JunctionProblem, ic: number, x0: number, x1: number, widthUm: number, biases: number[], model: IonisationModel, warnings: string[], skipBreakdown: boolean): WindowElectrical {
+  const { nx, nz, z } = grid.mesh;
+  const solver = new PoissonSolver(problem);
+  const lines = new FieldLines(grid.mesh);
+  const column = new Float64Array(nz);
+  for (let j = 0; j < nz; j++) column[j] = grid.net[j * nx + ic];
+  const plane = planeProblem(z, column);
+  const planeSolver = plane ? new PoissonSolver(plane) : null;
+  const out: WindowElectrical = {
+    biasAgainst: 'substrate', breakdownV: null, breakdownPlaneV: null, breakdownLimitedBy: null,
+    peakFieldVPerCm: [], peakFieldAtUm: [], depletionDepthUm: [], depletionLateralUm: [], areaCapacitanceFPerCm2: [], perimeterCapacitanceFPerCm: [],
+  };
+  const where = `window [${x0}, ${x1}] µm`;
+  let ok = solver.solve(0).converged && (planeSolver?.solve(0).converged ?? false);
+  if (!ok) warnings.push(`electrostatics of the ${where} did not converge at 0 V`);
+  const edges = (x0 > 0 ? 1 : 0) + (x1 < widthUm ? 1 : 0);
+  for (const v of biases) {
+    if (ok) ok = solver.continueTo(v).converged && planeSolver!.continueTo(v).converged;
+    if (!ok) {
+      warnings.push(`electrostatics of the ${where} did not converge at ${v} V: its results are null`);
+      for (const list of [out.peakFieldVPerCm, out.peakFieldAtUm, out.depletionDepthUm, out.depletionLateralUm, out.areaCapacitanceFPerCm2, out.perimeterCapacitanceFPerCm]) list.push(null);
+      continue;
+    }
+    lines.update(solver.psi);
+    const peak = lines.peak();
+    const pi = peak.k % nx;
+    const pj = (peak.k - pi) / nx;
+    out.peakFieldVPerCm.push(rounded(peak.fieldVPerCm));
+    out.peakFieldAtUm.push([rounded(grid.mesh.x[pi])!, rounded(z[pj])!]);
+    out.depletionDepthUm.push(rounded(depletionDepthUm(solver, ic)));
+    const left = x0 > 0 ? depletionReachUm(solver, x0, -1) : null;
+    const right = x1 < widthUm ? depletionReachUm(solver, x1, 1) : null;
+    out.depletionLateralUm.push(rounded(left === null ? right : right === null ? left : Math.max(left, right)));
+    const area = areaCapacitanceFPerCm2(planeSolver!);
+    solver.tangent();
+    const total = solver.regionCharge().capacitanceFPerCm;
+    out.areaCapacitanceFPerCm2.push(rounded(area));
+    out.perimeterCapacitanceFPerCm.push(edges > 0 ? rounded((total - area * (x1 - x0) * 1e-4) / edges) : null);
+  }
+  if (ok && !skipBreakdown) {
+    const guess = baligaGuess(Math.abs(column[nz - 1])).volts;
+    const planeBreakdown = searchBreakdown(planeSolver!, new FieldLines(plane!.mesh), model, guess);
+    const regionBreakdown = searchBreakdown(solver, lines, model, planeBreakdown.breakdownV ?? guess);
+    for (const [name, b] of [['plane junction below its centre', planeBreakdown], ['region', regionBreakdown]] as const) {
+      if (b.failedAtV !== null) warnings.push(`breakdown search of the ${where} (${name}) stopped: electrostatics did not converge at ${rounded(b.failedAtV, 4)} V`);
+    }
+    out.breakdownPlaneV = rounded(planeBreakdown.breakdownV, 4);
+    out.breakdownV = rounded(regionBreakdown.breakdownV, 4);
+    if (out.breakdownV !== null && out.breakdownPlaneV !== null) {
+      out.breakdownLimitedBy = out.breakdownV < out.breakdownPlaneV * 0.995 ? 'edge' : 'plane';
+    }
+  }
+  return out;
+}
