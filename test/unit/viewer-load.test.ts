@@ -35,7 +35,34 @@ function inFolder(dir: string, files: Map<string, Uint8Array>): [string, Uint8Ar
   return [...files].map(([k, v]) => [`${dir}/${k}`, v]);
 }
 
+/** Files over a connection that can list them but not say whether one exists, logging every read. */
+class ListingSource implements FileSource {
+  label = 'served';
+  readonly reads: string[] = [];
+  constructor(readonly files: Map<string, Uint8Array>, private readonly listing: boolean) {}
+  async read(path: string) {
+    this.reads.push(path);
+    const b = this.files.get(path);
+    if (!b) throw new FileProblem(path, 'not found');
+    return b.buffer.slice(b.byteOffset, b.byteOffset + b.byteLength) as ArrayBuffer;
+  }
+  async list() { return this.listing ? [...this.files.keys()].filter((p) => p.endsWith('.json')) : null; }
+}
+
 describe('opening folders', () => {
+  it('does not ask for sweep.json when the listing shows a lone run, and reads each file once', async () => {
+    const source = new ListingSource(new Map(runFiles), true);
+    const set = await loadDataSet(source);
+    expect(set.problems).toEqual([]);
+    expect(set.kind).toBe('run');
+    expect(source.reads).not.toContain('sweep.json');
+    expect([...source.reads].sort()).toEqual(['field.npy', 'report.json', 'x.npy', 'z.npy']);
+    // Without a listing it still finds the run, by asking.
+    const blind = new ListingSource(new Map(runFiles), false);
+    expect((await loadDataSet(blind)).runs).toHaveLength(1);
+    expect(blind.reads).toContain('sweep.json');
+  });
+
   it('opens a lone run folder with its layers and mesh', async () => {
     const set = await loadDataSet(new MemorySource(new Map(runFiles)));
     expect(set.problems).toEqual([]);

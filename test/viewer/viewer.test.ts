@@ -75,21 +75,128 @@ describe('edgewise view on a sweep folder', () => {
     const sorted = [...runs].sort((a, b) => a.widthUm - b.widthUm);
     expect(s.tiles.map((t) => t.dir)).toEqual(sorted.map((r) => r.dir));
     const captions = await page.$$eval('.caption', (els) => els.map((e) => ({
-      id: (e as HTMLElement).dataset.runId, xj: e.querySelector('.xj')!.textContent, window: e.querySelector('.window')!.textContent,
+      id: (e as HTMLElement).dataset.runId, xj: e.querySelector('.xj')!.textContent, head: e.querySelector('.caption-head')!.textContent,
     })));
     expect(captions).toHaveLength(WIDTHS.length);
     for (const c of captions) {
       const run = runs.find((r) => r.id === c.id)!;
       const report = readReport(join(sweepDir, run.dir)); // source: the CLI's report.json
       expect(c.xj).toMatch(new RegExp(`^xj ${report.windows[0].junctionDepthUm.toFixed(3)}( ± [0-9.]+)? µm$`));
-      expect(c.window).toBe(`window ${run.widthUm.toFixed(2)} µm`);
+      // The swept parameter in words and units, not its key (source: sweep.json's values).
+      expect(c.head).toBe(`window width ${run.widthUm} µm`);
     }
+    // Captions are on top of the canvases: the page's topmost element at a caption's middle is in it.
+    const onTop = await page.$$eval('.caption', (els) => els.map((e) => {
+      const r = e.getBoundingClientRect();
+      return e.contains(document.elementFromPoint(r.left + 10, r.top + r.height / 2));
+    }));
+    expect(onTop.every(Boolean)).toBe(true);
     // One length scale: every tile has the same pixels per µm.
     expect(new Set(s.tiles.map((t) => t.view!.pxPerUmX)).size).toBe(1);
     await shot(page, 'sweep-grid');
   });
 
+  it('draws every tile true to scale by default: a µm across is as many pixels as a µm down, measured on screen', async () => {
+    const s = await snapshot(page);
+    expect(s.shown).toBe('edges'); // wider than deep (24 µm × 3.2 µm): the edge view by default
+    for (const t of s.tiles) for (const v of t.views) expect(v.pxPerUmZ).toBe(v.pxPerUmX);
+    // Pixels of the 2 µm window's tile: across, the gap in the mask band is the window's width;
+    // down, the junction contour crosses the window's centre line at xj below the surface.
+    const run = runs.find((r) => r.widthUm === 2)!;
+    const report = readReport(join(sweepDir, run.dir)); // source: report.json (window edges, xj at the centre)
+    const w = report.windows[0];
+    const view = s.tiles.find((t) => t.id === run.id)!.views[0];
+    const at = (x: number, z: number) => page.evaluate(([i, xx, zz]) => window.edgewise.app.worldToClient(i as string, xx as number, zz as number)!, [run.id, x, z]);
+    const [left] = await at(view.x0Um, 0);
+    const [, bandY] = await at(w.centreUm, -3 / view.pxPerUmZ);
+    const row = Array.from({ length: view.width }, (_, k) => [left + k + 0.5, bandY] as [number, number]);
+    const rowPx = await stagePixels(page, row, 'gl');
+    const grey = (p: number[]) => Math.abs(p[0] - 138) + Math.abs(p[1] - 143) + Math.abs(p[2] - 152) < 24; // the mask's colour (tile.ts)
+    const centreK = Math.round((await at(w.centreUm, 0))[0] - left);
+    let a = centreK;
+    while (a > 0 && !grey(rowPx[a - 1])) a--;
+    let b = centreK;
+    while (b < rowPx.length - 1 && !grey(rowPx[b + 1])) b++;
+    const acrossPxPerUm = (b - a + 1) / (w.x1Um - w.x0Um);
+    const [cx, top] = await at(w.centreUm, -12 / view.pxPerUmZ);
+    const column = Array.from({ length: view.height + 12 }, (_, k) => [cx, top + k + 0.5] as [number, number]);
+    const [glCol, withContour] = await Promise.all([stagePixels(page, column, 'gl'), stagePixels(page, column)]);
+    await page.evaluate(() => window.edgewise.app.set({ contours: false }));
+    const withoutContour = await stagePixels(page, column);
+    await page.evaluate(() => window.edgewise.app.set({ contours: true }));
+    const background = [246, 246, 244]; // the stage's clear colour (stage.ts)
+    const surface = glCol.findIndex((p) => Math.abs(p[0] - background[0]) + Math.abs(p[1] - background[1]) + Math.abs(p[2] - background[2]) > 30);
+    // The contour: the rows the junction line changes (drawn centred on the junction).
+    const line = withContour.map((p, k) => (Math.abs(p[0] - withoutContour[k][0]) + Math.abs(p[1] - withoutContour[k][1]) + Math.abs(p[2] - withoutContour[k][2]) > 30 ? k : -1)).filter((k) => k >= 0);
+    expect(surface).toBeGreaterThan(0);
+    expect(line.length).toBeGreaterThan(0);
+    expect(line[line.length - 1] - line[0]).toBeLessThan(8); // one line, a few px wide
+    const contourRow = 0.5 * (line[0] + line[line.length - 1]) + 0.5;
+    const downPxPerUm = (contourRow - surface) / w.junctionDepthUm;
+    // One µm across and one µm down within 4 % (the two lengths are 80 px and 74 px, read to a pixel or so).
+    expect(Math.abs(downPxPerUm / acrossPxPerUm - 1)).toBeLessThan(0.04);
+    expect(Math.abs(acrossPxPerUm / view.pxPerUmX - 1)).toBeLessThan(0.04);
+  });
+
+  it('draws the lateral reach as a dimension at each mask edge, its label the report\'s figure', async () => {
+    const s = await snapshot(page);
+    for (const run of runs) {
+      const report = readReport(join(sweepDir, run.dir)); // source: report.json
+      const w = report.windows[0];
+      const tile = s.tiles.find((t) => t.id === run.id)!;
+      for (const side of ['left', 'right'] as const) {
+        const reach = side === 'left' ? (w.lateralReachLeftUm ?? w.lateralLeftUm) : (w.lateralReachRightUm ?? w.lateralRightUm);
+        const edge = side === 'left' ? w.x0Um : w.x1Um;
+        const end = side === 'left' ? edge - reach : edge + reach;
+        const label = await page.$eval(`.dimension[data-run-id="${run.id}"][data-side="${side}"]`, (e) => ({ text: e.textContent, box: e.getBoundingClientRect().toJSON() }));
+        expect(label.text).toBe(`${reach.toFixed(3)} µm`);
+        const view = tile.views.find((v) => edge >= v.x0Um && edge <= v.x0Um + v.width / v.pxPerUmX)!;
+        const lineZ = view.z0Um - 9 / view.pxPerUmZ; // DIMENSION_RISE_PX above the view's top (dimensions.ts)
+        const [mid, lineY] = await page.evaluate(([i, xx, zz]) => window.edgewise.app.worldToClient(i as string, xx as number, zz as number)!, [run.id, 0.5 * (edge + end), lineZ]);
+        const [centre] = await page.evaluate(([i, xx, zz]) => window.edgewise.app.worldToClient(i as string, xx as number, zz as number)!, [run.id, w.centreUm, lineZ]);
+        const [onLine, offLine] = await stagePixels(page, [[mid, lineY], [centre, lineY]]);
+        expect(onLine[0] + onLine[1] + onLine[2]).toBeLessThan(3 * 110); // the dark dimension line
+        expect(offLine[0] + offLine[1] + offLine[2]).toBeGreaterThan(3 * 230); // none over the window
+        // The number sits just above its line.
+        expect(label.box.bottom).toBeLessThanOrEqual(lineY + 1);
+        expect(label.box.bottom).toBeGreaterThan(lineY - 12);
+      }
+    }
+    await shot(page, 'edge-view');
+  });
+
+  it('shows the hover readout over any tile of the grid, from that tile\'s field', async () => {
+    const sorted = [...runs].sort((a, b) => a.widthUm - b.widthUm);
+    for (const run of [sorted[1], sorted[3]]) {
+      const dir = join(sweepDir, run.dir);
+      const report = readReport(dir);
+      const [field, x, z] = await Promise.all([readNpy(join(dir, 'field.npy')), readNpy(join(dir, 'x.npy')), readNpy(join(dir, 'z.npy'))]);
+      const w = report.windows[0];
+      const view = (await snapshot(page)).tiles.find((t) => t.id === run.id)!.views[0];
+      for (const [tx, tz] of [[w.x0Um - 0.3, 0.4 * w.junctionDepthUm], [w.x0Um + 0.2, 1.2 * w.junctionDepthUm]]) {
+        const p = await page.evaluate(([i, xx, zz]) => window.edgewise.app.worldToClient(i as string, xx as number, zz as number)!, [run.id, tx, tz]);
+        await page.mouse.move(p[0], p[1]);
+        const readout = await page.$eval('.readout', (el) => ({
+          hidden: (el as HTMLElement).hidden, runId: (el as HTMLElement).dataset.runId,
+          rows: [...el.querySelectorAll('div')].map((d) => ({ ...(d as HTMLElement).dataset, text: d.textContent }) as Record<string, string | undefined>),
+        }));
+        expect(readout.hidden).toBe(false);
+        expect(readout.runId).toBe(run.id);
+        const xShown = Number(/([-\d.]+) µm/.exec(readout.rows.find((r) => r.quantity === 'x')!.text!)![1]);
+        const zShown = Number(/([-\d.]+) µm/.exec(readout.rows.find((r) => r.quantity === 'z')!.text!)![1]);
+        expect(Math.abs(xShown - tx)).toBeLessThan(2 / view.pxPerUmX);
+        expect(Math.abs(zShown - tz)).toBeLessThan(2 / view.pxPerUmZ);
+        const shown = Number(readout.rows.find((r) => r.layer === 'net')!.value);
+        // source: bilinear interpolation of this run's field.npy at the shown (x, z)
+        const expected = bilinear(field.data, 0, x.data, z.data, report.crossSection.widthUm, xShown, zShown);
+        expect(Math.abs(shown - expected) / Math.abs(expected)).toBeLessThan(0.01);
+      }
+    }
+    await page.mouse.move(2, 2);
+  });
+
   it('draws the junction contour where report.json says it is', async () => {
+    await page.evaluate(() => window.edgewise.app.set({ shown: 'full' }));
     const points: { run: string; at: [number, number] }[] = [];
     for (const run of runs) {
       const report = readReport(join(sweepDir, run.dir)); // source: report.json junction polylines
@@ -108,11 +215,13 @@ describe('edgewise view on a sweep folder', () => {
     // Every sampled contour point changes colour when the contour is drawn (a 3.5 px line: common practice for visibility).
     expect(onLine.filter(Boolean).length).toBe(client.length);
     for (let k = 0; k < control.length; k++) expect(differs(withLines[client.length + k], without[client.length + k])).toBe(false);
+    await page.evaluate(() => window.edgewise.app.set({ shown: 'edges' }));
   });
 
   it('draws every tile in one WebGL canvas, and the panel toggles the mask, mesh lines, iso lines and colour range', async () => {
     // One canvas for all tiles (plus the 2D overlay and the colour bar), however many tiles.
     expect(await page.$$eval('canvas', (els) => els.length)).toBe(3);
+    await page.evaluate(() => window.edgewise.app.set({ shown: 'full' }));
     const id = runs.find((r) => r.widthUm === 8)!.id;
     const report = readReport(join(sweepDir, runs.find((r) => r.widthUm === 8)!.dir));
     const w = report.windows[0];
@@ -142,14 +251,36 @@ describe('edgewise view on a sweep folder', () => {
       return px.filter((p, k) => dist(p, plain[k]) > 20).length;
     };
     expect(await changed({ mesh: true }, { mesh: false })).toBeGreaterThan(5);
-    expect(await changed({ isoLines: 0.25 }, { isoLines: 0 })).toBeGreaterThan(2);
 
     // A range of its own: the colour bar's decades follow it.
     await page.evaluate(() => window.edgewise.app.set({ fromLog10: 15, toLog10: 19 }));
     const decades = await page.$$eval('.bar-ticks span', (els) => els.map((e) => Number((e as HTMLElement).dataset.exponent)));
     expect(decades).toEqual([15, 16, 17, 18, 19]);
     expect(await changed({}, {})).toBeGreaterThan(60); // the field's colours moved with the range
-    await page.evaluate(() => window.edgewise.app.set({ autoRange: true }));
+    await page.evaluate(() => window.edgewise.app.set({ autoRange: true, shown: 'edges' }));
+  });
+
+  it('draws iso-concentration lines in the diffused region only: none in the substrate or round the junction', async () => {
+    const run = runs.find((r) => r.widthUm === 2)!;
+    const report = readReport(join(sweepDir, run.dir)); // source: report.json
+    const w = report.windows[0];
+    const view = (await snapshot(page)).tiles.find((t) => t.id === run.id)!.views[0];
+    const at = (x: number, z: number) => page.evaluate(([i, xx, zz]) => window.edgewise.app.worldToClient(i as string, xx as number, zz as number)!, [run.id, x, z]);
+    const paneWidth = view.width / view.pxPerUmX;
+    // Across the diffused region at half the junction depth, and down the window's centre
+    // from just below the junction (|net doping| under the substrate's 1e15 cm⁻³) to the bottom.
+    const row = await Promise.all(Array.from({ length: 150 }, (_, k) => at(view.x0Um + ((k + 0.5) * paneWidth) / 150, 0.5 * w.junctionDepthUm)));
+    const bottom = view.z0Um + view.height / view.pxPerUmZ;
+    const below = await Promise.all(Array.from({ length: 40 }, (_, k) => at(w.centreUm, w.junctionDepthUm + 4 / view.pxPerUmZ + (k / 40) * (bottom - w.junctionDepthUm - 6 / view.pxPerUmZ))));
+    const plain = await stagePixels(page, [...row, ...below], 'gl');
+    await page.evaluate(() => window.edgewise.app.set({ isoLines: 0.25 }));
+    const lined = await stagePixels(page, [...row, ...below], 'gl');
+    await page.evaluate(() => window.edgewise.app.set({ isoLines: 0 }));
+    const dist = (a: number[], b: number[]) => Math.abs(a[0] - b[0]) + Math.abs(a[1] - b[1]) + Math.abs(a[2] - b[2]);
+    const changedInRow = row.filter((_, k) => dist(plain[k], lined[k]) > 20).length;
+    const changedBelow = below.filter((_, k) => dist(plain[row.length + k], lined[row.length + k]) > 6).length;
+    expect(changedInRow).toBeGreaterThan(4);
+    expect(changedBelow).toBe(0);
   });
 
   it('focuses a clicked tile; after zoom and pan the hover readout matches field.npy there within 1 %', async () => {
@@ -157,6 +288,7 @@ describe('edgewise view on a sweep folder', () => {
     const dir = join(sweepDir, run.dir);
     const report = readReport(dir);
     const [field, x, z] = await Promise.all([readNpy(join(dir, 'field.npy')), readNpy(join(dir, 'x.npy')), readNpy(join(dir, 'z.npy'))]);
+    await page.evaluate(() => window.edgewise.app.set({ shown: 'full' }));
     const target = await page.evaluate((id) => window.edgewise.app.worldToClient(id, 12, 0.5)!, run.id);
     await page.mouse.click(target[0], target[1]);
     await page.evaluate(() => window.edgewise.app.nextFrame());
@@ -212,7 +344,7 @@ describe('edgewise view on a sweep folder', () => {
     }
     await shot(page, 'focus-readout');
     await page.keyboard.press('Escape');
-    await page.evaluate(() => window.edgewise.app.nextFrame());
+    await page.evaluate(() => window.edgewise.app.set({ shown: 'edges' }));
     expect((await snapshot(page)).mode).toBe('grid');
   });
 
@@ -325,6 +457,29 @@ describe('other ways in', () => {
       expect(s.problems).toEqual([]);
       expect(s.tiles.map((t) => t.dir)).toEqual(sweep.runs.map((r: { dir: string }) => r.dir)); // source: sweep.json, in width order
       expect(s.recipe).toMatch(/recipe\.json/);
+    } finally {
+      await other.close();
+      await view.stop();
+    }
+  });
+});
+
+describe('a lone run', () => {
+  it('opens a run folder without asking for a sweep.json it does not have', async () => {
+    const dir = join(work, 'lone');
+    cliRun(recipeWithWindow(3), dir, join(work, '.recipes'));
+    const view = await startView(dir);
+    const other = await browser.context.newPage();
+    const asked: string[] = [];
+    other.on('request', (r) => asked.push(new URL(r.url()).pathname));
+    try {
+      await other.goto(view.url);
+      await waitForTiles(other);
+      const s = await other.evaluate(() => window.edgewise.app.snapshot());
+      expect(s.problems).toEqual([]);
+      expect(s.tiles).toHaveLength(1);
+      expect(asked.some((p) => /report\.json/.test(p) || /api\/files/.test(p))).toBe(true);
+      expect(asked.filter((p) => /sweep\.json/.test(p))).toEqual([]);
     } finally {
       await other.close();
       await view.stop();

@@ -1,16 +1,20 @@
 import { drawColourBar } from './colour-bar.ts';
 import { defaultRange, type ColourRange } from './colour-scale.ts';
 import type { PageElements } from './elements.ts';
-import { fitFocus, focusView, layoutGrid, sweepColumns, type FocusState, type GridLayout } from './layout.ts';
+import { arrange, scaleNote, tileAt, viewAt } from './arrange.ts';
+import type { Pane } from './edge-view.ts';
+import { fitFocus, type FocusState, type GridLayout } from './layout.ts';
 import { LivePanel } from './live-panel.ts';
 import { loadDataSet, type DataSet, type FileSource, type Problem } from './load.ts';
 import { showProblems } from './messages.ts';
 import { DisplayPanel, NET, type PanelState } from './panel.ts';
 import { drawPlot, plotPoints } from './plot.ts';
 import { placeCaptions } from './caption.ts';
+import { placeDimensionLabels } from './dimensions.ts';
 import { PointerControls, type Mode } from './pointer.ts';
 import { Stage } from './stage.ts';
 import { Tile } from './tile.ts';
+import type { TileView } from './tile-view.ts';
 
 function layerLabel(name: string): string {
   return name === NET ? '|net doping|' : name;
@@ -64,7 +68,7 @@ export class App {
     this.panel = new DisplayPanel(el.panel, {
       restyle: () => this.applyStyle(),
       relayout: () => {
-        if (this.modeNow.kind === 'focus') this.focus(this.modeNow.tile);
+        this.refit();
         this.applyStyle();
       },
     });
@@ -81,6 +85,7 @@ export class App {
       if (e.key === 'Escape' && this.modeNow.kind === 'focus') this.showGrid();
     });
     el.back.addEventListener('click', () => this.showGrid());
+    el.shownToggle.addEventListener('click', () => this.toggleShown());
   }
 
   get mode(): Mode {
@@ -156,7 +161,7 @@ export class App {
     this.tileList.push(tile);
     this.refreshQuantities();
     this.applyStyle();
-    if (focused) this.focus(tile);
+    if (focused && this.modeNow.kind === 'focus') this.focus(tile, this.modeNow.pane, this.modeNow.depthUm);
     this.setEmpty(null);
   }
 
@@ -203,24 +208,21 @@ export class App {
   }
 
   private layout(): void {
-    for (const t of this.tileList) t.view = null;
-    const stretch = this.panel.state.depthStretch;
-    if (this.modeNow.kind === 'focus') {
-      this.modeNow.tile.setView(focusView(this.modeNow.state, this.area()));
-      this.note(this.modeNow.state.stretch);
-    } else if (this.tileList.length > 0) {
-      const columns = sweepColumns(this.data?.parameters ?? [], this.tileList.map((t) => t.run.values));
-      const grid = layoutGrid(this.tileList.map((t) => ({ widthUm: t.widthUm, depthUm: t.depthUm })), this.area(), stretch, columns);
-      this.grid = grid;
-      this.tileList.forEach((t, k) => t.setView(grid.views[k]));
-      this.note(grid.stretch);
-    }
+    const { depthStretch, shown } = this.panel.state;
+    const a = arrange(this.tileList, this.modeNow, { area: this.area(), stretch: depthStretch, edges: shown === 'edges', parameters: this.data?.parameters ?? [] });
+    this.grid = a.grid;
+    this.el.scaleNote.textContent = this.tileList.length ? scaleNote(a, this.modeNow.kind === 'focus') : '';
+    const toggle = this.el.shownToggle;
+    toggle.hidden = !a.edgesAvailable || this.modeNow.kind === 'focus';
+    toggle.textContent = shown === 'edges' ? 'Full width' : 'Edge view';
+    toggle.title = shown === 'edges' ? 'show the whole width of every cross-section' : 'show a window around each mask edge, true to scale';
     this.layoutDirty = false;
   }
 
-  private note(stretch: number): void {
-    const text = `Lengths in µm, one scale for every tile${stretch === 1 ? ' (true shape).' : `; depth drawn ×${stretch}.`}`;
-    this.el.scaleNote.textContent = this.tileList.length ? text : '';
+  /** Between the edge view and the full width (the header's button). */
+  toggleShown(): void {
+    this.panel.set({ shown: this.panel.state.shown === 'edges' ? 'full' : 'edges' });
+    this.invalidate(true);
   }
 
   private visibleTiles(): Tile[] {
@@ -235,6 +237,7 @@ export class App {
     const visible = this.visibleTiles();
     this.stage.draw(visible);
     placeCaptions(this.el.captions, visible, this.stage.height, this.grid?.cellWidth ?? 200);
+    placeDimensionLabels(this.el.captions, visible);
     if (this.timing.firstFrameMs === null && this.loadStartedAt !== null && visible.length > 0) {
       // Wait for the GPU to finish the frame so the figure is the real drawing time.
       this.stage.finish();
@@ -249,11 +252,16 @@ export class App {
 
   // ---- focus ------------------------------------------------------------------------
 
-  focus(tile: Tile): void {
-    const state = fitFocus({ widthUm: tile.widthUm, depthUm: tile.depthUm }, this.area(), this.panel.state.depthStretch);
-    this.modeNow = { kind: 'focus', tile, state };
+  /** Focuses a pane of a tile (the whole cross-section when none is given). */
+  focus(tile: Tile, pane: Pane = { x0Um: 0, x1Um: tile.widthUm }, depthUm = tile.depthUm): void {
+    const state = fitFocus(pane, depthUm, this.area(), this.panel.state.depthStretch);
+    this.modeNow = { kind: 'focus', tile, pane, depthUm, state };
     this.el.back.hidden = false;
     this.invalidate(true);
+  }
+
+  refit(): void {
+    if (this.modeNow.kind === 'focus') this.focus(this.modeNow.tile, this.modeNow.pane, this.modeNow.depthUm);
   }
 
   moveFocus(state: FocusState): void {
@@ -269,13 +277,11 @@ export class App {
     this.invalidate(true);
   }
 
-  /** The tile of the grid cell under a canvas point, in grid mode. */
-  tileAt(px: number, py: number): Tile | null {
-    const g = this.grid;
-    if (this.modeNow.kind !== 'grid' || !g) return null;
-    const col = Math.floor(px / g.cellWidth);
-    const row = Math.floor(py / g.cellHeight);
-    if (col < 0 || col >= g.columns || row < 0) return null;
-    return this.tileList[row * g.columns + col] ?? null;
+  tileAt(px: number, py: number): { tile: Tile; pane: Pane; depthUm: number } | null {
+    return this.modeNow.kind === 'grid' && this.grid ? tileAt(this.tileList, this.grid, px, py) : null;
+  }
+
+  viewAt(px: number, py: number): { tile: Tile; view: TileView } | null {
+    return viewAt(this.visibleTiles(), px, py);
   }
 }

@@ -10,6 +10,8 @@ export interface PageElements {
   messages: HTMLElement;
   sourceLabel: HTMLElement;
   back: HTMLButtonElement;
+  /** the header's button between the edge view and the full width */
+  shownToggle: HTMLButtonElement;
   progress: HTMLElement;
   recipeInput: HTMLInputElement;
   captions: HTMLElement;
@@ -52,6 +54,7 @@ export function pageElements(doc: Document = document): PageElements {
     messages: byId(doc, 'messages'),
     sourceLabel: byId(doc, 'source-label'),
     back: byId<HTMLButtonElement>(doc, 'back'),
+    shownToggle: byId<HTMLButtonElement>(doc, 'shown'),
     progress: byId(doc, 'progress'),
     recipeInput: byId<HTMLInputElement>(doc, 'recipe-input'),
   };

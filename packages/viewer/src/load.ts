@@ -193,8 +193,7 @@ async function tryRead(source: FileSource, path: string): Promise<ArrayBuffer | 
   }
 }
 
-async function loadRecipe(source: FileSource, dirs: string[], problems: Problem[]): Promise<unknown> {
-  const listed = source.has ? null : await source.list().catch(() => null);
+async function loadRecipe(source: FileSource, dirs: string[], problems: Problem[], listed: string[] | null): Promise<unknown> {
   for (const dir of ['', ...dirs]) {
     const file = join(dir, 'recipe.json');
     if (listed && !listed.includes(file)) continue;
@@ -212,6 +211,10 @@ async function loadRecipe(source: FileSource, dirs: string[], problems: Problem[
 /** Opens whatever the source holds: a sweep folder, one run folder, or a folder of run folders. */
 export async function loadDataSet(source: FileSource): Promise<DataSet> {
   const problems: Problem[] = [];
+  // A source that cannot say whether it holds a file may list them: one request that saves
+  // asking for a sweep.json that a run folder does not have.
+  const listed = source.has ? null : await source.list().catch(() => null);
+  const absent = (path: string) => (source.has ? !source.has(path) : listed !== null && !listed.includes(path));
   const note = (e: unknown) => {
     if (e instanceof FileProblem) problems.push({ file: e.file, reason: e.reason });
     else problems.push({ file: source.label, reason: (e as Error).message ?? String(e) });
@@ -233,13 +236,13 @@ export async function loadDataSet(source: FileSource): Promise<DataSet> {
       }
     }));
     const runs = sortRuns(results.filter((r): r is RunData => r !== null), parameters);
-    const recipe = await loadRecipe(source, entries.slice(0, 1).map((e) => e.dir), problems);
+    const recipe = await loadRecipe(source, entries.slice(0, 1).map((e) => e.dir), problems, listed);
     return { label: source.label, kind, parameters, runs, problems, recipe };
   };
 
   let sweepBuffer: ArrayBuffer | null = null;
   try {
-    sweepBuffer = await tryRead(source, 'sweep.json');
+    if (!absent('sweep.json')) sweepBuffer = await tryRead(source, 'sweep.json');
   } catch (e) {
     note(e);
   }
@@ -256,11 +259,13 @@ export async function loadDataSet(source: FileSource): Promise<DataSet> {
       return { label: source.label, kind: 'sweep', parameters: [], runs: [], problems, recipe: null };
     }
   }
-  if (await tryRead(source, 'report.json').catch(() => null) !== null || (source.has?.('report.json') ?? false)) {
+  const hasReport = source.has ? source.has('report.json')
+    : listed ? listed.includes('report.json')
+    : await tryRead(source, 'report.json').catch(() => null) !== null;
+  if (hasReport) {
     return gather([{ id: 'run', dir: '', values: {} }], 'run', []);
   }
-  const listed = await source.list().catch(() => null);
-  const dirs = (listed ?? [])
+  const dirs = (listed ?? await source.list().catch(() => null) ?? [])
     .filter((p) => /(^|\/)report\.json$/.test(p))
     .map((p) => p.replace(/\/?report\.json$/, ''))
     .filter((d) => d.length > 0);

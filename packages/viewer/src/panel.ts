@@ -13,6 +13,8 @@ export interface PanelState {
   toLog10: number;
   isoLines: number;
   depthStretch: number;
+  /** the edge view (a window around each mask edge, where the section is much wider than deep) or the full width */
+  shown: 'edges' | 'full';
   mask: boolean;
   mesh: boolean;
   contours: boolean;
@@ -32,7 +34,7 @@ export interface PanelActions {
 export class DisplayPanel {
   readonly gui: GUI;
   readonly state: PanelState = {
-    quantity: NET, autoRange: true, fromLog10: 14, toLog10: 20, isoLines: 0, depthStretch: 0,
+    quantity: NET, autoRange: true, fromLog10: 14, toLog10: 20, isoLines: 0, depthStretch: 1, shown: 'edges',
     mask: true, mesh: false, contours: true,
   };
   private readonly quantity: Controller;
@@ -52,7 +54,8 @@ export class DisplayPanel {
     ];
     for (const c of range.controllers) c.listen(false);
     gui.add(p, 'isoLines', { none: 0, 'every decade': 1, 'every ½ decade': 0.5, 'every ¼ decade': 0.25 }).name('iso-concentration lines').onChange(restyle);
-    gui.add(p, 'depthStretch', { automatic: 0, '×1 (true shape)': 1, '×2': 2, '×5': 5, '×10': 10, '×20': 20 }).name('depth drawn').onChange(() => actions.relayout());
+    gui.add(p, 'shown', { 'edge view': 'edges', 'full width': 'full' }).name('cross-section shown').onChange(() => actions.relayout());
+    gui.add(p, 'depthStretch', { '×1 (true shape)': 1, '×2': 2, '×5': 5, '×10': 10, '×20': 20 }).name('depth drawn').onChange(() => actions.relayout());
     gui.add(p, 'mask').name('mask').onChange(restyle);
     gui.add(p, 'mesh').name('mesh lines').onChange(restyle);
     gui.add(p, 'contours').name('junction contours').onChange(restyle);

@@ -1,28 +1,34 @@
-import { focusView, pan, zoomAbout, type FocusState } from './layout.ts';
+import { runTitle } from './caption.ts';
+import type { Pane } from './edge-view.ts';
+import { pan, zoomAbout, type FocusState } from './layout.ts';
 import { showReadout } from './readout.ts';
 import { sampleField } from './sample.ts';
 import type { Stage } from './stage.ts';
 import type { Tile } from './tile.ts';
-import { canvasToWorld } from './tile-view.ts';
+import { canvasToWorld, type TileView } from './tile-view.ts';
 
 /** The grid of every tile, or one tile focused with its pan and zoom. */
-export type Mode = { kind: 'grid' } | { kind: 'focus'; tile: Tile; state: FocusState };
+export type Mode = { kind: 'grid' } | { kind: 'focus'; tile: Tile; pane: Pane; depthUm: number; state: FocusState };
 
 /** What the pointer needs of the app. */
 export interface PointerHost {
   readonly stage: Stage;
   readonly mode: Mode;
-  /** the tile of the grid cell under a canvas point, in grid mode */
-  tileAt(px: number, py: number): Tile | null;
-  focus(tile: Tile): void;
+  /** the tile of the grid cell under a canvas point and its pane nearest the point, in grid mode */
+  tileAt(px: number, py: number): { tile: Tile; pane: Pane; depthUm: number } | null;
+  /** the drawn view under a canvas point, and its tile */
+  viewAt(px: number, py: number): { tile: Tile; view: TileView } | null;
+  focus(tile: Tile, pane?: Pane, depthUm?: number): void;
+  /** fits the focused pane again */
+  refit(): void;
   /** the focused tile's new pan and zoom */
   moveFocus(state: FocusState): void;
 }
 
 /**
  * The pointer over the view: a click on a tile focuses it; in focus, drag pans, the wheel
- * zooms about the pointer, a double click fits the tile again; the hover readout follows
- * the pointer.
+ * zooms about the pointer, a double click fits the pane again; the hover readout follows
+ * the pointer over any tile.
  */
 export class PointerControls {
   private drag: { x: number; y: number; moved: boolean } | null = null;
@@ -33,10 +39,7 @@ export class PointerControls {
     view.addEventListener('pointerup', (e) => this.up(e));
     view.addEventListener('pointerleave', () => this.hideReadout());
     view.addEventListener('wheel', (e) => this.wheel(e), { passive: false });
-    view.addEventListener('dblclick', () => {
-      const mode = host.mode;
-      if (mode.kind === 'focus') host.focus(mode.tile);
-    });
+    view.addEventListener('dblclick', () => host.refit());
   }
 
   hideReadout(): void {
@@ -77,8 +80,8 @@ export class PointerControls {
     this.drag = null;
     if (drag && !drag.moved && this.host.mode.kind === 'grid') {
       const [px, py] = this.local(e);
-      const tile = this.host.tileAt(px, py);
-      if (tile) this.host.focus(tile);
+      const hit = this.host.tileAt(px, py);
+      if (hit) this.host.focus(hit.tile, hit.pane, hit.depthUm);
     }
   }
 
@@ -92,16 +95,16 @@ export class PointerControls {
     this.hover(px, py);
   }
 
-  /** The readout at a canvas point of the focused tile: position, every layer, the side of the junction. */
+  /** The readout at a canvas point of any drawn tile: the run, position, every layer, the side of the junction. */
   private hover(px: number, py: number): void {
-    const mode = this.host.mode;
-    if (mode.kind !== 'focus') {
+    const hit = this.host.viewAt(px, py);
+    if (!hit) {
       this.hideReadout();
       return;
     }
-    const tile = mode.tile;
-    const [x, z] = canvasToWorld(focusView(mode.state, this.area()), px, py);
+    const { tile, view } = hit;
+    const [x, z] = canvasToWorld(view, px, py);
     const s = sampleField(tile.run.field, tile.run.layers.length, tile.grid, x, z);
-    showReadout(this.readout, tile.run.layers, x, z, s);
+    showReadout(this.readout, tile.run.layers, x, z, s, { runId: tile.run.id, title: runTitle(tile.run) });
   }
 }

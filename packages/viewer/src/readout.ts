@@ -2,13 +2,20 @@ import { formatConcentration } from './colour-scale.ts';
 import { junctionSide, type Sample } from './sample.ts';
 
 /**
- * The hover readout of the focused tile: the position, every layer there (net doping first)
+ * The hover readout of a tile: the run, the position, every layer there (net doping first)
  * and the side of the junction. Each row carries its quantity or layer and the full-precision
  * value as data attributes.
  */
-export function showReadout(el: HTMLElement, layers: string[], xUm: number, zUm: number, sample: Sample | null): void {
+export function showReadout(el: HTMLElement, layers: string[], xUm: number, zUm: number, sample: Sample | null, run?: { runId: string; title: string }): void {
   el.hidden = false;
   el.replaceChildren();
+  if (run) {
+    el.dataset.runId = run.runId;
+    const head = document.createElement('div');
+    head.className = 'readout-head';
+    head.textContent = run.title;
+    el.append(head);
+  }
   const row = (label: string, value: string, data?: Record<string, string>) => {
     const d = document.createElement('div');
     const l = document.createElement('span');

@@ -3,6 +3,7 @@ import { colourMapRgba } from './colormap.ts';
 import { niceTicks, formatTick } from './ticks.ts';
 import type { Tile } from './tile.ts';
 import type { TileView } from './tile-view.ts';
+import { drawDimension, viewShowsEdge } from './dimensions.ts';
 
 const BACKGROUND = 0xf6f6f4;
 
@@ -28,7 +29,8 @@ export class Stage {
     this.canvas.className = 'stage-gl';
     this.overlay = document.createElement('canvas');
     this.overlay.className = 'stage-overlay';
-    container.append(this.canvas, this.overlay);
+    // Under the captions, readout and messages the page put in the view.
+    container.prepend(this.canvas, this.overlay);
     this.renderer = new THREE.WebGLRenderer({ canvas: this.canvas, antialias: false, preserveDrawingBuffer: true });
     this.renderer.autoClear = false;
     this.renderer.setPixelRatio(Math.min(2, window.devicePixelRatio || 1));
@@ -57,7 +59,7 @@ export class Stage {
     return true;
   }
 
-  /** Draws the tiles, each into its view, then their axes. */
+  /** Draws the tiles, each into each of its views, then their contours, axes and dimensions. */
   draw(tiles: Tile[]): void {
     const r = this.renderer;
     r.setScissorTest(false);
@@ -65,32 +67,30 @@ export class Stage {
     r.clear(true, true, false);
     r.setScissorTest(true);
     for (const tile of tiles) {
-      const v = tile.view;
-      if (!v) continue;
-      const bottom = this.height - v.top - v.height;
-      r.setViewport(v.left, bottom, v.width, v.height);
-      r.setScissor(v.left, bottom, v.width, v.height);
-      r.render(tile.scene, tile.camera);
+      for (const v of tile.views) {
+        const bottom = this.height - v.top - v.height;
+        tile.aim(v);
+        r.setViewport(v.left, bottom, v.width, v.height);
+        r.setScissor(v.left, bottom, v.width, v.height);
+        r.render(tile.scene, tile.camera);
+      }
     }
     r.setScissorTest(false);
-    this.drawAxes(tiles);
+    this.drawOverlay(tiles);
     this.frames++;
   }
 
-  private drawAxes(tiles: Tile[]): void {
+  private drawOverlay(tiles: Tile[]): void {
     const ctx = this.ctx;
     const ratio = this.renderer.getPixelRatio();
     ctx.setTransform(ratio, 0, 0, ratio, 0, 0);
     ctx.clearRect(0, 0, this.width, this.height);
-    ctx.font = '10px system-ui, sans-serif';
-    ctx.strokeStyle = '#444';
-    ctx.fillStyle = '#333';
-    ctx.lineWidth = 1;
     for (const tile of tiles) {
-      const v = tile.view;
-      if (!v) continue;
-      if (tile.showContours) drawContours(ctx, v, tile.contours);
-      drawTileAxes(ctx, v, tile.widthUm, tile.depthUm);
+      tile.views.forEach((v, k) => {
+        if (tile.showContours) drawContours(ctx, v, tile.contours);
+        drawTileAxes(ctx, v, tile.widthUm, tile.depthUm, k === 0);
+        for (const d of tile.dimensions) if (viewShowsEdge(v, d)) drawDimension(ctx, v, d);
+      });
     }
   }
 
@@ -144,7 +144,11 @@ function drawContours(ctx: CanvasRenderingContext2D, v: TileView, lines: Float64
   ctx.lineWidth = 1;
 }
 
-function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: number, depthUm: number): void {
+/**
+ * A view's axes: x along the bottom of the cross-section, depth down the left (labelled on
+ * the first pane of a tile only), each with its unit.
+ */
+function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: number, depthUm: number, first: boolean): void {
   const xMin = Math.max(0, v.x0Um);
   const xMax = Math.min(widthUm, v.x0Um + v.width / v.pxPerUmX);
   const zMin = Math.max(0, v.z0Um);
@@ -154,13 +158,17 @@ function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: numbe
   const py = (z: number) => v.top + (z - v.z0Um) * v.pxPerUmZ;
   const axisY = Math.min(v.top + v.height, py(depthUm)) + 0.5;
   const axisX = Math.max(v.left, px(0)) - 0.5;
+  ctx.font = '10px system-ui, sans-serif';
+  ctx.strokeStyle = '#444';
+  ctx.fillStyle = '#333';
+  ctx.lineWidth = 1;
   ctx.beginPath();
   ctx.moveTo(px(xMin), axisY);
   ctx.lineTo(px(xMax), axisY);
   ctx.moveTo(axisX, py(zMin));
   ctx.lineTo(axisX, py(zMax));
-  const xt = niceTicks(xMin, xMax, Math.max(2, Math.floor((px(xMax) - px(xMin)) / 90)));
-  const zt = niceTicks(zMin, zMax, Math.max(2, Math.floor((py(zMax) - py(zMin)) / 40)));
+  const xt = niceTicks(xMin, xMax, Math.max(2, Math.floor((px(xMax) - px(xMin)) / 70)));
+  const zt = niceTicks(zMin, zMax, Math.max(2, Math.floor((py(zMax) - py(zMin)) / 36)));
   for (const x of xt.values) {
     ctx.moveTo(Math.round(px(x)) + 0.5, axisY);
     ctx.lineTo(Math.round(px(x)) + 0.5, axisY + 4);
@@ -173,11 +181,24 @@ function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: numbe
   ctx.textAlign = 'center';
   ctx.textBaseline = 'top';
   for (const x of xt.values) ctx.fillText(formatTick(x, xt), px(x), axisY + 5);
-  ctx.textAlign = 'left';
-  const last = xt.values[xt.values.length - 1];
-  const lastEnd = last === undefined ? -Infinity : px(last) + ctx.measureText(formatTick(last, xt)).width / 2;
-  ctx.fillText('µm', Math.max(px(xMax) + 6, lastEnd + 5), axisY + 5);
+  ctx.fillStyle = '#555';
+  ctx.fillText('x, µm', 0.5 * (px(xMin) + px(xMax)), axisY + 18);
+  if (!first) return;
+  ctx.fillStyle = '#333';
   ctx.textAlign = 'right';
   ctx.textBaseline = 'middle';
-  for (const z of zt.values) ctx.fillText(formatTick(z, zt), axisX - 6, py(z));
+  let widest = 0;
+  for (const z of zt.values) {
+    const label = formatTick(z, zt);
+    widest = Math.max(widest, ctx.measureText(label).width);
+    ctx.fillText(label, axisX - 6, py(z));
+  }
+  ctx.save();
+  ctx.fillStyle = '#555';
+  ctx.translate(axisX - 12 - widest, 0.5 * (py(zMin) + py(zMax)));
+  ctx.rotate(-Math.PI / 2);
+  ctx.textAlign = 'center';
+  ctx.textBaseline = 'bottom';
+  ctx.fillText('depth, µm', 0, 0);
+  ctx.restore();
 }

@@ -27,7 +27,9 @@ export class TestHooks {
   worldToClient(runId: string, xUm: number, zUm: number): [number, number] | null {
     const tile = this.app.tiles.find((t) => t.run.id === runId);
     if (!tile?.view) return null;
-    const [px, py] = worldToCanvas(tile.view, xUm, zUm);
+    // The pane that shows x (the edge view has several), else the first.
+    const view = tile.views.find((v) => xUm >= v.x0Um && xUm <= v.x0Um + v.width / v.pxPerUmX) ?? tile.view;
+    const [px, py] = worldToCanvas(view, xUm, zUm);
     const r = this.app.stage.canvas.getBoundingClientRect();
     return [r.left + px, r.top + py];
   }
@@ -60,13 +62,14 @@ export class TestHooks {
     return {
       mode: mode.kind,
       focused: mode.kind === 'focus' ? mode.tile.run.id : null,
-      tiles: app.tiles.map((t) => ({ id: t.run.id, dir: t.run.dir, values: t.run.values, view: t.view, columns: t.grid.columns, rows: t.grid.rows, detail: t.detail })),
+      tiles: app.tiles.map((t) => ({ id: t.run.id, dir: t.run.dir, values: t.run.values, view: t.view, views: t.views, columns: t.grid.columns, rows: t.grid.rows, detail: t.detail })),
       problems: app.problems,
       frames: app.stage.frames,
       timing: { ...app.timing },
       gpu: { ...app.stage.renderer.info.memory },
       live: app.live.state.status,
       recipe: app.live.recipeLabel,
+      shown: app.panel.state.shown,
     };
   }
 }

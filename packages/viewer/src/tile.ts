@@ -1,5 +1,6 @@
 import * as THREE from 'three';
 import type { ColourRange } from './colour-scale.ts';
+import { reachDimensions, type ReachDimension } from './dimensions.ts';
 import { fragmentShader, vertexShader } from './field-shader.ts';
 import type { RunData } from './load.ts';
 import {
@@ -46,9 +47,12 @@ export class Tile {
   private readonly meshLines: THREE.LineSegments;
   /** junction polylines as flat [x0, z0, x1, z1, …] in µm, drawn by the stage's 2D overlay */
   readonly contours: Float64Array[];
+  /** the lateral reach at each mask edge, drawn as dimensions */
+  readonly dimensions: ReachDimension[];
   showContours = true;
   private layer = '';
-  view: TileView | null = null;
+  /** where the tile is drawn: one view per pane, none when it is not drawn */
+  views: TileView[] = [];
 
   constructor(readonly run: RunData, colourMap: THREE.Texture) {
     const { report } = run;
@@ -57,7 +61,7 @@ export class Tile {
     this.grid = nodeGrid(run.x, run.z, this.widthUm);
     this.material = new THREE.ShaderMaterial({
       vertexShader, fragmentShader,
-      uniforms: { colourMap: { value: colourMap }, lo: { value: 14 }, hi: { value: 20 }, isoStep: { value: 0 } },
+      uniforms: { colourMap: { value: colourMap }, lo: { value: 14 }, hi: { value: 20 }, isoStep: { value: 0 }, isoFloor: { value: 0 } },
     });
     this.field = new THREE.Mesh(this.geometry, this.material);
     this.field.frustumCulled = false;
@@ -79,6 +83,7 @@ export class Tile {
     this.meshLines.visible = false;
     this.scene.add(this.meshLines);
 
+    this.dimensions = reachDimensions(report, this.widthUm);
     this.contours = report.junctions.flatMap((j) => j.polylinesUm.map((line) => Float64Array.from(line.flat())));
   }
 
@@ -105,6 +110,7 @@ export class Tile {
     this.material.uniforms.lo.value = style.range.lo;
     this.material.uniforms.hi.value = style.range.hi;
     this.material.uniforms.isoStep.value = style.isoStepDecades;
+    this.material.uniforms.isoFloor.value = Math.log10(Math.max(1, this.run.report.substrate.concentrationCm3));
     const iso = style.isoStepDecades > 0;
     if (iso !== 'ISO_LINES' in this.material.defines) {
       if (iso) this.material.defines.ISO_LINES = '';
@@ -159,18 +165,27 @@ export class Tile {
     return [this.sub?.columns.length ?? 0, this.sub?.rows.length ?? 0];
   }
 
-  /** Points the camera at the view's world window and sizes the mask band to it. */
-  setView(view: TileView): void {
-    this.view = view;
-    const right = view.x0Um + view.width / view.pxPerUmX;
-    const bottom = view.z0Um + view.height / view.pxPerUmZ;
+  /** The first view, or null when the tile is not drawn. */
+  get view(): TileView | null {
+    return this.views[0] ?? null;
+  }
+
+  /** Where the tile is drawn; the level of detail follows the scale of the first view. */
+  setViews(views: TileView[]): void {
+    this.views = views;
+    const v = views[0];
+    if (!v) return;
+    this.maskGroup.scale.y = MASK_BAND_PX / v.pxPerUmZ;
+    this.setDetail(DETAIL_PX / v.pxPerUmX, DETAIL_PX / v.pxPerUmZ);
+  }
+
+  /** Points the camera at a view's world window (before drawing into it). */
+  aim(view: TileView): void {
     this.camera.left = view.x0Um;
-    this.camera.right = right;
+    this.camera.right = view.x0Um + view.width / view.pxPerUmX;
     this.camera.top = -view.z0Um;
-    this.camera.bottom = -bottom;
+    this.camera.bottom = -(view.z0Um + view.height / view.pxPerUmZ);
     this.camera.updateProjectionMatrix();
-    this.maskGroup.scale.y = MASK_BAND_PX / view.pxPerUmZ;
-    this.setDetail(DETAIL_PX / view.pxPerUmX, DETAIL_PX / view.pxPerUmZ);
   }
 
   dispose(): void {
