@@ -70,6 +70,40 @@ export interface UniformLines {
   columns: Uint8Array;
 }
 
+/**
+ * One variable-D half step's lines, as `variableSweep` and its kernels read them: the
+ * layout and couplings are fixed for the mesh; β, e, the line kinds, the held value and the
+ * flat lines are set for each step.
+ */
+interface VariableSetup {
+  /** stride of ν from one line to the next, and along a line */
+  nuLine: number;
+  nuAlong: number;
+  /** points per line, number of lines */
+  n: number;
+  m: number;
+  /** coupling to the previous and next position along a line, and to the previous and next line */
+  gPrev: Float64Array;
+  gNext: Float64Array;
+  hPrev: Float64Array;
+  hNext: Float64Array;
+  /** Thomas factors of the four lines of a block */
+  cp: Float64Array;
+  /** positions along a held line whose value is the held value */
+  heldAlong: Uint8Array;
+  /** a held line is held at position 0 only (z columns), which a block can take */
+  firstOnly: boolean;
+  /** the constant-D lines of the same sweep, for lines where ν is flat */
+  shared: SweepSetup;
+  ends: FlatEnds;
+  /** this step: implicit and explicit weights, which lines are held, their value, flat lines */
+  beta: number;
+  e: number;
+  kind: Uint8Array;
+  heldValue: number;
+  flat: Uint8Array | null;
+}
+
 export class AdiStepper {
   readonly nx: number;
   readonly nz: number;
@@ -93,13 +127,12 @@ export class AdiStepper {
   private readonly star: Float64Array;
   private readonly savedRows: Float64Array;
   /** Thomas factors of the four lines of a block, for variable D */
-  private readonly cpBlock: Float64Array;
   /** per row (x sweep) and per column (z sweep): 1 where the line and both neighbours have one ν */
   private readonly flatRows: Uint8Array;
   private readonly flatColumns: Uint8Array;
-  /** each sweep's flat runs at the ends of its lines (see FlatEnds) */
-  private readonly xEnds: FlatEnds;
-  private readonly zEnds: FlatEnds;
+  /** the variable-D x sweep (lines are z rows) and z sweep (lines are x columns) */
+  private readonly xVariable: VariableSetup;
+  private readonly zVariable: VariableSetup;
 
   constructor(mesh: Mesh, mask: Mask) {
     primeOnce(primeKernels);
@@ -142,11 +175,20 @@ export class AdiStepper {
     };
     this.star = new Float64Array(nx * nz);
     this.savedRows = new Float64Array(2 * nx);
-    this.cpBlock = new Float64Array(4 * n);
     this.flatRows = new Uint8Array(nz);
     this.flatColumns = new Uint8Array(nx);
-    this.xEnds = { lead: 0, left: this.xSweep.free, right: backwardFactor(nx) };
-    this.zEnds = { lead: 0, left: this.zSweep.free, right: backwardFactor(nz) };
+    const cp = new Float64Array(4 * n);
+    const { ax, cx, az, cz } = this;
+    this.xVariable = {
+      nuLine: nx, nuAlong: 1, n: nx, m: nz, gPrev: ax, gNext: cx, hPrev: az, hNext: cz, cp, heldAlong: mask.open, firstOnly: false,
+      shared: this.xSweep, ends: { lead: 0, left: this.xSweep.free, right: backwardFactor(nx) },
+      beta: 0, e: 0, kind: this.noneHeldX, heldValue: 0, flat: null,
+    };
+    this.zVariable = {
+      nuLine: 1, nuAlong: nx, n: nz, m: nx, gPrev: az, gNext: cz, hPrev: ax, hNext: cx, cp, heldAlong: zHeldAlong, firstOnly: true,
+      shared: this.zSweep, ends: { lead: 0, left: this.zSweep.free, right: backwardFactor(nz) },
+      beta: 0, e: 0, kind: this.sealedZKind, heldValue: 0, flat: null,
+    };
   }
 
   /** Atoms per unit length of cross-section, in cm^-3·µm², i.e. Σ C·Δx·Δz. */
@@ -200,7 +242,7 @@ export class AdiStepper {
     this.prepare(implicit, explicit, held);
     sweepLines(c, this.star, this.xSweep, surfaceValue);
     sweepLines(this.star, c, this.zSweep, surfaceValue);
-    return held ? this.inflow(c, nu, pr) : 0;
+    return held ? this.inflow(c, null, nu, pr) : 0;
   }
 
   /**
@@ -212,36 +254,36 @@ export class AdiStepper {
    * (the same equations; the same result to rounding).
    */
   stepVariable(c: Float64Array, nu: Float64Array, scheme: Scheme, held: boolean, surfaceValue: number, uniform: UniformLines | null = null): number {
-    const { nx, nz, ax, cx, az, cz } = this;
+    const { nx, nz, ax, cx, az, cz, xVariable: xv, zVariable: zv } = this;
     const pr = scheme === 'peaceman-rachford';
     const implicit = pr ? 0.5 : 1;
     const explicit = pr ? 0.5 : 0;
     if (held) this.savedRows.set(c.subarray(0, 2 * nx));
-    const rowHeld = held ? this.surfaceRowKind : this.noneHeldX;
-    const columnHeld = held ? this.openColumnKind : this.sealedZKind;
-    let flatRows: Uint8Array | null = null;
-    let flatColumns: Uint8Array | null = null;
-    const { xEnds, zEnds } = this;
+    xv.beta = zv.beta = implicit;
+    xv.e = zv.e = explicit;
+    xv.heldValue = zv.heldValue = surfaceValue;
+    xv.kind = held ? this.surfaceRowKind : this.noneHeldX;
+    zv.kind = held ? this.openColumnKind : this.sealedZKind;
+    xv.flat = zv.flat = null;
+    const xEnds = xv.ends, zEnds = zv.ends;
     xEnds.lead = 0;
     xEnds.right.from = nx;
     zEnds.right.from = nz;
     if (uniform !== null) {
       // Shared factors for ν = uniform.nu; held lines keep their own path.
       this.prepare(implicit * uniform.nu, explicit * uniform.nu, false);
-      flatRows = flatLines(uniform.rows, rowHeld, this.flatRows);
-      flatColumns = flatLines(uniform.columns, columnHeld, this.flatColumns);
+      xv.flat = flatLines(uniform.rows, xv.kind, this.flatRows);
+      zv.flat = flatLines(uniform.columns, zv.kind, this.flatColumns);
       // Rows: flat columns at both ends; columns: flat rows at the bottom (row 0 takes the dopant).
-      trailingFactor(flatColumns, implicit * uniform.nu, ax, cx, xEnds.right);
-      xEnds.lead = leadingRun(flatColumns, xEnds.right.from);
-      trailingFactor(flatRows, implicit * uniform.nu, az, cz, zEnds.right);
+      trailingFactor(zv.flat, implicit * uniform.nu, ax, cx, xEnds.right);
+      xEnds.lead = leadingRun(zv.flat, xEnds.right.from);
+      trailingFactor(xv.flat, implicit * uniform.nu, az, cz, zEnds.right);
     }
     // ν stays row-major for both sweeps: along a row (x sweep) consecutive, along a column
     // (z sweep) a row apart, where the four columns of a block read neighbouring values.
-    variableSweep(c, this.star, nu, nx, 1, nx, nz, ax, cx, az, cz, implicit, explicit, this.cpBlock, rowHeld, this.open, false, surfaceValue,
-      flatRows, this.xSweep, xEnds);
-    variableSweep(this.star, c, nu, 1, nx, nz, nx, az, cz, ax, cx, implicit, explicit, this.cpBlock, columnHeld, this.zSweep.heldAlong, true, surfaceValue,
-      flatColumns, this.zSweep, zEnds);
-    return held ? this.inflowVariable(c, nu, pr) : 0;
+    variableSweep(c, this.star, nu, xv);
+    variableSweep(this.star, c, nu, zv);
+    return held ? this.inflow(c, nu, 1, pr) : 0;
   }
 
   /** Factorises I − β·Ax and I − β·Az (sealed and held variants) and sets the explicit part. */
@@ -289,45 +331,28 @@ export class AdiStepper {
     zSweep.kind = held ? this.openColumnKind : this.sealedZKind;
   }
 
-  /** As `inflow`, with ν per node; a face takes the mean of its two nodes. */
-  private inflowVariable(c: Float64Array, nu: Float64Array, pr: boolean): number {
-    const { nx, nz, ax, cx, cz, open, star, savedRows, volumeX, volumeZ } = this;
-    let total = 0;
-    for (let i = 0; i < nx; i++) {
-      if (open[i] !== 1) continue;
-      const s = star[i * nz];
-      let divX = 0;
-      if (i > 0) divX += 0.5 * (nu[i - 1] + nu[i]) * ax[i] * (star[(i - 1) * nz] - s);
-      if (i < nx - 1) divX += 0.5 * (nu[i + 1] + nu[i]) * cx[i] * (star[(i + 1) * nz] - s);
-      const c0 = pr ? 0.5 * (c[i] + savedRows[i]) : c[i];
-      const c1 = pr ? 0.5 * (c[nx + i] + savedRows[nx + i]) : c[nx + i];
-      total -= volumeX[i] * volumeZ[0] * (divX + 0.5 * (nu[i] + nu[nx + i]) * cz[0] * (c1 - c0));
-    }
-    return total;
-  }
-
   /**
    * Atoms that entered through the held surface cells during the step:
-   * −ν·Σ_held V·(Ax C* + Az C̄), the negative of what the conservative operator removed
-   * from the held nodes, which stay at Cs.
+   * −Σ_held V·(Ax(ν) C* + Az(ν) C̄), the negative of what the conservative operator removed
+   * from the held nodes, which stay at Cs. `nu` holds ν per node (a face takes the mean of
+   * its two nodes) and `scale` is 1; or `nu` is null and ν is `scale` everywhere.
    */
-  private inflow(c: Float64Array, nu: number, pr: boolean): number {
+  private inflow(c: Float64Array, nu: Float64Array | null, scale: number, pr: boolean): number {
     const { nx, nz, ax, cx, cz, open, star, savedRows, volumeX, volumeZ } = this;
     let total = 0;
     for (let i = 0; i < nx; i++) {
       if (open[i] !== 1) continue;
       const s = star[i * nz];
       let divX = 0;
-      if (i > 0) divX += ax[i] * (star[(i - 1) * nz] - s);
-      if (i < nx - 1) divX += cx[i] * (star[(i + 1) * nz] - s);
+      if (i > 0) divX += (nu === null ? 1 : 0.5 * (nu[i - 1] + nu[i])) * ax[i] * (star[(i - 1) * nz] - s);
+      if (i < nx - 1) divX += (nu === null ? 1 : 0.5 * (nu[i + 1] + nu[i])) * cx[i] * (star[(i + 1) * nz] - s);
       const c0 = pr ? 0.5 * (c[i] + savedRows[i]) : c[i];
       const c1 = pr ? 0.5 * (c[nx + i] + savedRows[nx + i]) : c[nx + i];
-      total -= nu * volumeX[i] * volumeZ[0] * (divX + cz[0] * (c1 - c0));
+      total -= scale * volumeX[i] * volumeZ[0] * (divX + (nu === null ? 1 : 0.5 * (nu[i] + nu[nx + i])) * cz[0] * (c1 - c0));
     }
     return total;
   }
 }
-
 
 /**
  * Runs every path of both steppers, held and sealed, in both schemes, PRIMING_CALLS times on
@@ -370,7 +395,7 @@ function primeKernels(): void {
  * solved with the line's factor and written transposed into `dst` at k·m + q.
  * Positions of a held line marked in `heldAlong` take `heldValue` (identity rows).
  */
-export function sweepLines(src: Float64Array, dst: Float64Array, s: SweepSetup, heldValue: number): void {
+function sweepLines(src: Float64Array, dst: Float64Array, s: SweepSetup, heldValue: number): void {
   const { m, kind } = s;
   const heldFirstOnly = s.heldAlong === s.heldFirstOnly;
   let q = 0;
@@ -456,10 +481,8 @@ function sweepLine(src: Float64Array, dst: Float64Array, s: SweepSetup, q: numbe
  * rest (held lines of a row sweep, mixed blocks, the remainder) one at a time. `firstOnly`
  * says a held line is held at position 0 only, which a block can take.
  */
-function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number,
-                       gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
-                       beta: number, e: number, cp: Float64Array, kind: Uint8Array, heldAlong: Uint8Array,
-                       firstOnly: boolean, heldValue: number, flat: Uint8Array | null, shared: SweepSetup, ends: FlatEnds): void {
+function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, v: VariableSetup): void {
+  const { m, kind, heldAlong, firstOnly, flat, shared } = v;
   let q = 0;
   for (; q + 4 <= m; q += 4) {
     const k0 = kind[q];
@@ -467,14 +490,12 @@ function variableSweep(src: Float64Array, dst: Float64Array, nu: Float64Array, n
     if (flat !== null && flat[q] + flat[q + 1] + flat[q + 2] + flat[q + 3] === 4) {
       sweepBlock(src, dst, shared, q, shared.free, false, 0);
     } else if (sameKind && (k0 === 0 || firstOnly)) {
-      variableBlock(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, k0 === 1, heldValue, ends);
+      variableBlock(src, dst, nu, v, q, k0 === 1);
     } else {
-      for (let r = q; r < q + 4; r++) {
-        variableLine(src, dst, nu, nuLine, nuAlong, n, m, r, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[r] === 1 ? heldAlong : null, heldValue);
-      }
+      for (let r = q; r < q + 4; r++) variableLine(src, dst, nu, v, r, kind[r] === 1 ? heldAlong : null);
     }
   }
-  for (; q < m; q++) variableLine(src, dst, nu, nuLine, nuAlong, n, m, q, gPrev, gNext, hPrev, hNext, beta, e, cp, kind[q] === 1 ? heldAlong : null, heldValue);
+  for (; q < m; q++) variableLine(src, dst, nu, v, q, kind[q] === 1 ? heldAlong : null);
 }
 
 /**
@@ -553,9 +574,8 @@ function flatLines(uniform: Uint8Array, kind: Uint8Array, out: Uint8Array): Uint
  * faces taking the mean ν of their two nodes; the result goes transposed into `dst`.
  * `held` marks positions held at `heldValue` (identity rows), or is null.
  */
-function variableLine(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number, q: number,
-                      gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
-                      beta: number, e: number, cp: Float64Array, held: Uint8Array | null, heldValue: number): void {
+function variableLine(src: Float64Array, dst: Float64Array, nu: Float64Array, v: VariableSetup, q: number, held: Uint8Array | null): void {
+  const { nuLine, nuAlong, n, m, gPrev, gNext, hPrev, hNext, beta, e, cp, heldValue } = v;
   const base = q * n;
   const before = q > 0 ? base - n : base;
   const after = q < m - 1 ? base + n : base;
@@ -604,10 +624,9 @@ function variableLine(src: Float64Array, dst: Float64Array, nu: Float64Array, nu
  * the middle, backward over the trailing run, the two eliminations joined at the last middle
  * position, then substituted back out from there.
  */
-function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, nuLine: number, nuAlong: number, n: number, m: number, q: number,
-                       gPrev: Float64Array, gNext: Float64Array, hPrev: Float64Array, hNext: Float64Array,
-                       beta: number, e: number, cp: Float64Array, heldFirst: boolean, heldValue: number, ends: FlatEnds): void {
-  const { lead, left, right } = ends;
+function variableBlock(src: Float64Array, dst: Float64Array, nu: Float64Array, v: VariableSetup, q: number, heldFirst: boolean): void {
+  const { nuLine, nuAlong, n, m, gPrev, gNext, hPrev, hNext, beta, e, cp, heldValue } = v;
+  const { lead, left, right } = v.ends;
   const end = right.from;
   const b0 = q * n, b1 = b0 + n, b2 = b1 + n, b3 = b2 + n;
   const bb = q > 0 ? b0 - n : b0;
