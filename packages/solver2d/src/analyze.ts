@@ -8,7 +8,9 @@ import { finestX, finestZ } from './mesh.ts';
 import type { LedgerEntry, Simulation } from './simulate.ts';
 import { doseFromConcentrationUm } from './units.ts';
 
-export const REPORT_SCHEMA_ID = 'edgewise.report/1';
+import { REPORT_SCHEMA_ID } from './schema-ids.ts';
+
+export { REPORT_SCHEMA_ID };
 
 export interface WindowReport extends WindowResults {
   x0Um: number;

@@ -66,7 +66,7 @@ function cellOf(axis: Float64Array, x: number): number {
 }
 
 /** Derivatives of the indicator at (x, z), bilinear between the four surrounding nodes. */
-export function derivativesAt(grid: NodeGrid, x: number, z: number): Derivatives {
+function derivativesAt(grid: NodeGrid, x: number, z: number): Derivatives {
   const i = cellOf(grid.xs, x);
   const j = cellOf(grid.zs, z);
   const tx = Math.min(1, Math.max(0, (x - grid.xs[i]) / (grid.xs[i + 1] - grid.xs[i])));
@@ -78,12 +78,12 @@ export function derivativesAt(grid: NodeGrid, x: number, z: number): Derivatives
   return { fx: mix('fx'), fz: mix('fz'), fxx: mix('fxx'), fzz: mix('fzz'), fxz: mix('fxz') };
 }
 
-export function curvatureOf(d: Derivatives): number {
+function curvatureOf(d: Derivatives): number {
   const g2 = d.fx * d.fx + d.fz * d.fz;
   return Math.abs(d.fxx * d.fz * d.fz - 2 * d.fxz * d.fx * d.fz + d.fzz * d.fx * d.fx) / g2 ** 1.5;
 }
 
-export interface EdgeCurvature {
+interface EdgeCurvature {
   /** radius of curvature at the middle of the turn, µm */
   radiusUm: number;
   /** where that is, µm */

@@ -9,7 +9,7 @@ import type { Simulation } from './simulate.ts';
 import { contourEndingAt, noSpacing, pairSpacing, type PairSpacing } from './spacing.ts';
 
 /** One layer of the column below a window centre, between two junctions or the surface and a junction. */
-export interface LayerResult {
+interface LayerResult {
   /** n or p: the sign of the net doping */
   type: 'n' | 'p';
   /** from the surface or a junction down to the next junction, µm */
@@ -56,7 +56,7 @@ export interface ReportResults {
   errorEstimate?: ErrorEstimateSummary;
 }
 
-export interface EngineeringResults extends ReportResults {
+interface EngineeringResults extends ReportResults {
   windows: WindowResults[];
 }
 

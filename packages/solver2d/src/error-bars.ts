@@ -13,7 +13,7 @@
  * Safety factors follow common practice for grid-convergence estimates: 1.25 when the
  * order was measured and is credible (0.5 ≤ p, the three values monotone), 3 otherwise.
  */
-export const FORMAL_ORDER = 2;
+const FORMAL_ORDER = 2;
 export const SAFETY_MEASURED = 1.25;
 export const SAFETY_ASSUMED = 3;
 const MIN_CREDIBLE_ORDER = 0.5;

@@ -89,7 +89,7 @@ export function withErrorBars(reports: Report[], recipe: Recipe): Report {
   return { ...fine, windows, ...(spacings ? { spacings } : {}), errorEstimate };
 }
 
-export interface ErrorSolveOptions extends SimulateOptions {
+interface ErrorSolveOptions extends SimulateOptions {
   /** coarser meshes to solve: 1 (2h) or 2 (2h and 4h) */
   levels?: 1 | 2;
   limits?: PlanLimits;
@@ -113,7 +113,7 @@ export function coarseReports(recipe: Recipe, options: ErrorSolveOptions = {}): 
  */
 const MAIN_SOLVE_SHARE = 0.8;
 
-export interface SolveWithErrorBarsOptions {
+interface SolveWithErrorBarsOptions {
   /** coarser solves: 0 (no error bars), 1 (2h) or 2 (2h and 4h) */
   levels: 0 | 1 | 2;
   limits?: PlanLimits;

@@ -3,7 +3,7 @@ import type { Mesh } from './mesh.ts';
 export type Window = readonly [number, number];
 
 /** A run of surface cells that are all open or all masked, [i0, i1). */
-export interface SurfaceSegment {
+interface SurfaceSegment {
   i0: number;
   i1: number;
   open: boolean;

@@ -38,7 +38,7 @@ const GRADE = 0.15;
 const BOTTOM_FRACTION = 1e-3;
 
 /** How deep the profiles reach, and the finer details near the surface and the edges. */
-export interface ProfileReach {
+interface ProfileReach {
   /** the 1D junction-depth estimate of the deepest source, µm */
   reachUm: number;
   /** depth where the deepest profile has fallen to BOTTOM_FRACTION of the background, µm */

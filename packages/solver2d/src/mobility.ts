@@ -15,7 +15,7 @@
  */
 
 /** Elementary charge, C (SI 2019, exact). */
-export const ELEMENTARY_CHARGE_C = 1.602176634e-19;
+const ELEMENTARY_CHARGE_C = 1.602176634e-19;
 
 export type Carrier = 'electron' | 'hole';
 
@@ -53,8 +53,6 @@ export const MOBILITY_FITS = {
     pc: 9.23e16, cr: 2.23e17, cs: 6.1e20, alpha: 0.719, beta: 2.0, source: MASETTI,
   },
 } as const satisfies Record<string, MobilityFit>;
-
-export type MobilityFitName = keyof typeof MOBILITY_FITS;
 
 /**
  * The fit for a layer whose majority dopant is `dopant`: the paper's own fit for B, P and As;

@@ -12,7 +12,7 @@ import { RecipeError } from './recipe-terms.ts';
 /** Window edges closer than this to each other or to a wall (but not on it) are refused, µm. */
 const MIN_FEATURE_UM = 1e-3;
 
-export function checkWindows(windows: readonly Window[], widthUm: number): void {
+function checkWindows(windows: readonly Window[], widthUm: number): void {
   windows.forEach(([x0, x1], k) => {
     if (!(x1 > x0)) throw new RecipeError(`mask.windows[${k}]`, `must have x1 > x0: a window needs a positive width (got [${x0}, ${x1}] µm)`);
     if (x1 > widthUm) throw new RecipeError(`mask.windows[${k}]`, `must lie inside the cross-section [0, ${widthUm}] µm (got [${x0}, ${x1}] µm)`);

@@ -7,12 +7,14 @@ import { DIFFUSION_MODELS, RecipeError } from './recipe-terms.ts';
  */
 export { DIFFUSION_MODELS, RecipeError };
 
-export const RECIPE_SCHEMA_ID = 'edgewise.recipe/1';
+import { RECIPE_SCHEMA_ID } from './schema-ids.ts';
+
+export { RECIPE_SCHEMA_ID };
 
 /** Temperatures the diffusivity tables are meant for; silicon melts at 1414 °C. */
-export const TEMPERATURE_RANGE_C = [600, 1400] as const;
+const TEMPERATURE_RANGE_C = [600, 1400] as const;
 /** Longest step accepted, minutes (about ten weeks). */
-export const MAX_MINUTES = 1e5;
+const MAX_MINUTES = 1e5;
 
 function formatNumber(v: number): string {
   if (v === 0) return '0';
@@ -20,7 +22,7 @@ function formatNumber(v: number): string {
   return a >= 1e5 || a < 1e-3 ? v.toExponential().replace('e+', 'e') : String(v);
 }
 
-export function describeValue(input: unknown): string {
+function describeValue(input: unknown): string {
   if (input === undefined) return 'nothing';
   if (input === null) return 'null';
   if (typeof input === 'number') return Number.isNaN(input) ? 'NaN' : formatNumber(input);

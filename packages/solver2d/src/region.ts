@@ -44,7 +44,7 @@ export function labelRegions(inverted: Uint8Array, nx: number, nz: number): Regi
 }
 
 /** Index of the mesh column whose centre is nearest to x. */
-export function nearestColumn(mesh: Mesh, x: number): number {
+function nearestColumn(mesh: Mesh, x: number): number {
   let best = 0;
   for (let i = 1; i < mesh.nx; i++) if (Math.abs(mesh.x[i] - x) < Math.abs(mesh.x[best] - x)) best = i;
   return best;

@@ -33,7 +33,7 @@ export interface LedgerEntry {
   relativeImbalance: number;
 }
 
-export interface StepRecord {
+interface StepRecord {
   index: number;
   kind: string;
   timeSteps: number;

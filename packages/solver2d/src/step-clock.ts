@@ -59,7 +59,7 @@ function nonlinearGrowth(speedup: number): number {
 }
 
 /** One time step: its interval within the process step and the temperature at its middle. */
-export interface TimeStep {
+interface TimeStep {
   t0: number;
   t1: number;
   implicit: boolean;

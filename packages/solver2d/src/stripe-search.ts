@@ -38,7 +38,7 @@ export interface StripeSearch {
   recipe: Recipe;
 }
 
-export interface StripeSearchOptions {
+interface StripeSearchOptions {
   gapUm: number;
   toleranceUm: number;
   limits?: PlanLimits;

@@ -20,7 +20,7 @@ export function factorTridiagonal(a: Float64Array, b: Float64Array, c: Float64Ar
 }
 
 /** Solves with a factorisation from `factorTridiagonal`; `d` is overwritten by the solution. */
-export function solveFactored(a: Float64Array, cp: Float64Array, inv: Float64Array,
+function solveFactored(a: Float64Array, cp: Float64Array, inv: Float64Array,
                               d: Float64Array, n: number): Float64Array {
   d[0] *= inv[0];
   for (let i = 1; i < n; i++) d[i] = (d[i] - a[i] * d[i - 1]) * inv[i];

@@ -10,9 +10,9 @@
 /** Boltzmann constant, eV/K (CODATA 2018, exact by SI definition). */
 export const BOLTZMANN_EV_PER_K = 8.617333262e-5;
 
-export const CM2_PER_S_TO_UM2_PER_S = 1e8;
+const CM2_PER_S_TO_UM2_PER_S = 1e8;
 export const UM_TO_CM = 1e-4;
-export const SECONDS_PER_MINUTE = 60;
+const SECONDS_PER_MINUTE = 60;
 
 export function kelvin(temperatureC: number): number {
   return temperatureC + 273.15;

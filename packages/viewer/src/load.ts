@@ -1,4 +1,4 @@
-import type { Report } from '@edgewise/solver2d';
+import { REPORT_SCHEMA_ID, SWEEP_SCHEMA_ID, type Report } from '@edgewise/solver2d';
 import { parseNpy } from './npy.ts';
 
 /**
@@ -55,8 +55,6 @@ export interface DataSet {
   recipe: unknown;
 }
 
-export const SWEEP_SCHEMA_ID = 'edgewise.sweep/1';
-export const REPORT_SCHEMA = 'edgewise.report/1';
 
 function join(dir: string, name: string): string {
   return dir ? `${dir.replace(/\/+$/, '')}/${name}` : name;
@@ -77,7 +75,7 @@ const isNumber = (v: unknown): v is number => typeof v === 'number' && Number.is
 /** The first thing wrong with a report object, naming its key; null if it is usable. */
 export function reportProblem(r: unknown): string | null {
   if (!isObject(r)) return 'is not a JSON object';
-  if (r.schema !== REPORT_SCHEMA) return `"schema" is ${JSON.stringify(r.schema)}, expected "${REPORT_SCHEMA}"`;
+  if (r.schema !== REPORT_SCHEMA_ID) return `"schema" is ${JSON.stringify(r.schema)}, expected "${REPORT_SCHEMA_ID}"`;
   const cs = r.crossSection;
   if (!isObject(cs) || !isNumber(cs.widthUm) || !isNumber(cs.depthUm) || cs.widthUm <= 0 || cs.depthUm <= 0) return '"crossSection" needs positive numbers widthUm and depthUm';
   if (!Array.isArray(r.windows)) return '"windows" must be a list';

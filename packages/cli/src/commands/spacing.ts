@@ -1,7 +1,7 @@
 import { basename, extname, join } from 'node:path';
 import { parseArgs } from 'node:util';
 import {
-  analyze, parseRecipe, planRecipe, searchStripeWithError, simulate, StripeSearchError, type StripeSearchWithError,
+  analyze, parseRecipe, planRecipe, searchStripeWithError, simulate, SPACING_SCHEMA_ID, StripeSearchError, type StripeSearchWithError,
 } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
 import { inside, writeAtomic } from '../files.ts';
@@ -12,7 +12,6 @@ import { parseErrorSolves } from './run.ts';
 
 export const SPACING_USAGE = 'edgewise spacing RECIPE --gap G [--tol T] [--out DIR] [--error-solves 0|1|2] [--quiet]';
 
-export const SPACING_SCHEMA_ID = 'edgewise.spacing/1';
 const GAP_RANGE_UM = [0, 1000] as const;
 const TOL_RANGE_UM = [1e-4, 10] as const;
 const DEFAULT_TOL_UM = 0.01;

@@ -5,13 +5,13 @@ import { parseArgs } from 'node:util';
 import { parseRecipe, type PlanLimits } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
 import { inside, makeFolders } from '../files.ts';
-import { fmtLength, fmtRatio, fmtSci, table } from '../format.ts';
+import { fmtPlusMinus, fmtRatio, fmtSci, table } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits } from '../limits.ts';
 import { progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
 import { parseErrorSolves } from './run.ts';
 import type { RunRow } from '../sweep/csv.ts';
-import { buildMatrix, runRecipe, type SweepMatrix, type SweepRun } from '../sweep/matrix.ts';
+import { buildMatrix, recipeForRun, type SweepMatrix, type SweepRun } from '../sweep/matrix.ts';
 import { workerBundle, WorkerPool } from '../sweep/pool.ts';
 import { SWEEP_SCHEMA_ID, writeSweepFiles, type SweepDocument } from '../sweep/record.ts';
 import { finishedRun, removeStaleTemps } from '../sweep/resume.ts';
@@ -223,7 +223,7 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
   const lane = async (currentPool: WorkerPool) => {
     while (stopping === null && next < toDo.length) {
       const run = toDo[next++];
-      const recipe = runRecipe(matrix.base, matrix.parameters, run.values);
+      const recipe = recipeForRun(matrix.base, matrix.parameters, run.values);
       const row = rows.get(run.id)!;
       try {
         const outcome = await currentPool.run({ id: run.id, out: resolve(out), dir: run.dir, recipe: parseRecipe(recipe), recipeText: `${JSON.stringify(recipe, null, 2)}\n`, errorSolves: options.errorSolves, limits: options.limits });
@@ -284,11 +284,6 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
   return 0;
 }
 
-/** A length with its error bar when there is one: `0.776 ± 0.0012`. */
-function withError(v: number | null | undefined, error: number | null | undefined): string {
-  if (v === null || v === undefined) return fmtLength(null);
-  return error === null || error === undefined ? fmtLength(v) : `${fmtLength(v)} ± ${error.toPrecision(2)}`;
-}
 
 /** One line per run (per window when there are several), the swept values first. */
 function summaryTable(matrix: SweepMatrix, rows: readonly RunRow[]): string {
@@ -301,8 +296,8 @@ function summaryTable(matrix: SweepMatrix, rows: readonly RunRow[]): string {
       const w = r.windows?.[k];
       body.push([
         String(r.id), ...names.map((n) => String(r.values[n])), ...(several ? [String(k + 1)] : []),
-        withError(w?.junctionDepthUm, w?.errors?.junctionDepthUm), withError(w?.lateralLeftUm, w?.errors?.lateralLeftUm),
-        withError(w?.lateralRightUm, w?.errors?.lateralRightUm),
+        fmtPlusMinus(w?.junctionDepthUm ?? null, w?.errors?.junctionDepthUm), fmtPlusMinus(w?.lateralLeftUm ?? null, w?.errors?.lateralLeftUm),
+        fmtPlusMinus(w?.lateralRightUm ?? null, w?.errors?.lateralRightUm),
         fmtRatio(w?.lateralToVerticalRatio ?? null), w ? fmtSci(w.surfaceConcentrationCm3) : '—', r.status,
       ]);
     }

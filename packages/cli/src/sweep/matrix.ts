@@ -124,7 +124,7 @@ function resizeWindows(recipe: Record<string, unknown>, width: number, label: st
 }
 
 /** One run's recipe: the base without its sweep key, with this run's values in place. */
-export function runRecipe(base: Record<string, unknown>, parameters: readonly Parameter[], values: Record<string, number>, context = ''): Record<string, unknown> {
+export function recipeForRun(base: Record<string, unknown>, parameters: readonly Parameter[], values: Record<string, number>, context = ''): Record<string, unknown> {
   const recipe = structuredClone(base);
   delete recipe.sweep;
   for (const p of parameters) if (p.path) setAt(recipe, p.path, values[p.name]);
@@ -158,7 +158,7 @@ export function buildMatrix(input: unknown, request: SweepRequest): SweepMatrix 
     const values: Record<string, number> = {};
     parameters.forEach((p, k) => (values[p.name] = p.values[counter[k]]));
     const others = parameters.length > 1 ? ` in run ${id} (${describeValues(values)})` : '';
-    const r = runRecipe(base, parameters, values, others);
+    const r = recipeForRun(base, parameters, values, others);
     let meshPoints: number;
     try {
       const plan = withLimitHint(request.limits, () => planRecipe(parseRecipe(r), request.limits));

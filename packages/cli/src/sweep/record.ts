@@ -1,3 +1,4 @@
+import { SWEEP_SCHEMA_ID } from '@edgewise/solver2d';
 import { inside, writeAtomic } from '../files.ts';
 import { csvHeader, csvRow, encodeCsv, type RunRow, type RunStatus } from './csv.ts';
 import type { Shard } from './shard.ts';
@@ -7,7 +8,7 @@ import type { Shard } from './shard.ts';
  * values; `runs` lists each run's id, folder (relative to this file), values, status and error,
  * with the hash of the run's recipe that `--resume` checks a finished folder against.
  */
-export const SWEEP_SCHEMA_ID = 'edgewise.sweep/1';
+export { SWEEP_SCHEMA_ID };
 
 export interface SweepRunEntry {
   id: number;
