@@ -27,7 +27,7 @@ function erfIntegral(u: number): number {
 }
 
 /** Mean over [a, b] of ½[erf((x − x0)/s) − erf((x − x1)/s)], s = √2·σ. */
-function windowMean(a: number, b: number, x0: number, x1: number, s: number): number {
+export function windowMean(a: number, b: number, x0: number, x1: number, s: number): number {
   const part = (edge: number) => s * (erfIntegral((b - edge) / s) - erfIntegral((a - edge) / s));
   return (0.5 * (part(x0) - part(x1))) / (b - a);
 }

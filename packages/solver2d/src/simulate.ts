@@ -115,16 +115,18 @@ interface Run {
   total: number;
 }
 
-interface PlannedClock {
+export interface PlannedClock {
   clock: StepClock;
   /** time steps the clock gives at its starting speed-up (an upper bound) */
   count: number;
 }
 
-/** Each process step's clock, with the profile ages and start-up rules carried from step to step. */
-function planClocks(plan: Plan, peaks: Record<string, number>): PlannedClock[] {
-  const { mesh, species, steps } = plan;
-  const hFine = Math.min(finestX(mesh), finestZ(mesh));
+/**
+ * Each process step's clock, with the profile ages and start-up rules carried from step to
+ * step; `hFine` is the finest mesh spacing (the first step's scale).
+ */
+export function planClocks(plan: Plan, peaks: Record<string, number>, hFine = Math.min(finestX(plan.mesh), finestZ(plan.mesh))): PlannedClock[] {
+  const { species, steps } = plan;
   const introduced = new Set<string>();
   const ages: ProfileAges = { budgetSince: {}, sourceNu: {} };
   // A sealed step (drive-in, anneal) right after a timed sealed step meets no discontinuity:
@@ -155,7 +157,7 @@ function planClocks(plan: Plan, peaks: Record<string, number>): PlannedClock[] {
 }
 
 /** Refuses a recipe whose time steps × mesh points exceed the plan's limit, with an estimate of the time. */
-function checkWork(plan: Plan, total: number, cells: number): void {
+export function checkWork(plan: Plan, total: number, cells: number): void {
   const work = total * cells;
   if (work <= plan.limits.maxPointSteps) return;
   // A point-step of each species, on one core of the 2-core machine this was measured on at
