@@ -1,7 +1,8 @@
 import { join } from 'node:path';
 import type { Analysis } from '@edgewise/solver2d';
-import { stackLayers } from '@edgewise/solver2d';
+import { fullAxes, stackLayers } from '@edgewise/solver2d';
 import { encodeNpy, inside, writeAtomic } from './files.ts';
+import { planSvg } from './plan-svg.ts';
 import { contourSvg } from './svg.ts';
 
 /**
@@ -16,6 +17,17 @@ export function writeRunFolder(root: string, analysis: Analysis, dir = ''): stri
     writeAtomic(inside(root, join(dir, name)), data);
     written.push(name);
   };
+  if (field.space) {
+    // 3D: the full plan view (mirrored parts unfolded), [layers, nz, ny, nx], and y beside x and z.
+    const axes = fullAxes(field.space);
+    put('field.npy', encodeNpy(stackLayers(field), [field.names.length, mesh.nz, axes.y.length, axes.x.length]));
+    put('x.npy', encodeNpy(axes.x, [axes.x.length]));
+    put('y.npy', encodeNpy(axes.y, [axes.y.length]));
+    put('z.npy', encodeNpy(mesh.z, [mesh.nz]));
+    put('plan.svg', planSvg(report));
+    put('report.json', `${JSON.stringify(report, null, 2)}\n`);
+    return written;
+  }
   put('field.npy', encodeNpy(stackLayers(field), [field.names.length, mesh.nz, mesh.nx]));
   put('x.npy', encodeNpy(mesh.x, [mesh.nx]));
   put('z.npy', encodeNpy(mesh.z, [mesh.nz]));

@@ -1,3 +1,4 @@
+import { analyze3d, type PlanView, type RectangleReport } from './analyze3d.ts';
 import { engineeringResults, type ReportResults, type WindowResults } from './engineering.ts';
 import { buildField, type Field } from './field.ts';
 import {
@@ -49,9 +50,15 @@ export interface Report extends ReportResults {
   schema: typeof REPORT_SCHEMA_ID;
   title: string | null;
   substrate: { dopant: string; type: string; concentrationCm3: number };
-  crossSection: { widthUm: number; depthUm: number };
-  mesh: { columns: number; rows: number; finestXUm: number; finestZUm: number };
+  /** lengthUm: a 3D plan view's extent in y */
+  crossSection: { widthUm: number; depthUm: number; lengthUm?: number };
+  /** 3D: columns (x) and columnsY (y) of the solved part, mirror planes left out */
+  mesh: { columns: number; rows: number; finestXUm: number; finestZUm: number; columnsY?: number; finestYUm?: number };
   windows: WindowReport[];
+  /** 3D (mask.rectangles): per rectangle, junction depth and reach at edges and corners */
+  rectangles?: RectangleReport[];
+  /** 3D: the plan view's junction outlines */
+  plan?: PlanView;
   junctions: { polylinesUm: Polyline[] }[];
   /** dose per species per unit of open window area, cm^-2 */
   doseCm2: Record<string, number>;
@@ -61,7 +68,8 @@ export interface Report extends ReportResults {
   /** per step: temperature (fixed or ramp [start, end]), duration, time steps, and ∫D dt per species, µm² */
   steps: { index: number; kind: string; temperatureC: number | [number, number] | null; minutes: number; timeSteps: number; thermalBudgetUm2: Record<string, number> }[];
   /** the layers of field.npy, in order */
-  field: { layers: string[]; shape: [number, number, number] };
+  /** [layers, nz, nx], or [layers, nz, ny, nx] in 3D */
+  field: { layers: string[]; shape: [number, number, number] | [number, number, number, number] };
   warnings: string[];
 }
 
@@ -95,6 +103,7 @@ function weightedSum(a: Float64Array, b: Float64Array): number {
 
 export function analyze(sim: Simulation): Analysis {
   const { plan } = sim;
+  if (plan.space) return analyze3d(sim, plan.space);
   const { mesh, recipe } = plan;
   const field = buildField(sim);
   const indicator = invertedIndicator(field, plan.substrate.type);

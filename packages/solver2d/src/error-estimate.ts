@@ -1,4 +1,7 @@
 import { analyze, type Analysis, type Report } from './analyze.ts';
+import { CORNERS, EDGES, type RectangleReport } from './analyze3d.ts';
+
+type RectangleErrors = NonNullable<RectangleReport['errors']>;
 import { DEFAULT_STEP_GROWTH, planRecipe, type Plan, type PlanLimits } from './plan.ts';
 import type { Recipe } from './recipe.ts';
 import { simulate, type SimulateOptions } from './simulate.ts';
@@ -61,6 +64,12 @@ export function withErrorBars(reports: Report[], recipe: Recipe): Report {
     }
     return { ...s, errors };
   });
+  const rectangles = fine.rectangles?.map((r, k) => {
+    const bar = (pick: (x: RectangleReport) => number | null) => errorBar(reports.map((x) => (x.rectangles?.[k] ? pick(x.rectangles[k]) : null)));
+    const edgeReachUm = Object.fromEntries(EDGES.map((e) => [e, bar((x) => x.edgeReachUm[e])])) as RectangleErrors['edgeReachUm'];
+    const cornerReachUm = Object.fromEntries(CORNERS.map((c) => [c, bar((x) => x.cornerReachUm[c])])) as RectangleErrors['cornerReachUm'];
+    return { ...r, errors: { junctionDepthUm: bar((x) => x.junctionDepthUm), edgeReachUm, cornerReachUm } };
+  });
   const orders: number[] = [];
   if (reports.length >= 3) {
     for (let k = 0; k < fine.windows.length; k++) {
@@ -86,7 +95,7 @@ export function withErrorBars(reports: Report[], recipe: Recipe): Report {
     })),
     observedOrder: p === null ? null : Number(p.toPrecision(3)),
   };
-  return { ...fine, windows, ...(spacings ? { spacings } : {}), errorEstimate };
+  return { ...fine, windows, ...(spacings ? { spacings } : {}), ...(rectangles ? { rectangles } : {}), errorEstimate };
 }
 
 interface ErrorSolveOptions extends SimulateOptions {

@@ -1,5 +1,7 @@
 import ndarray, { type NdArray } from 'ndarray';
+import { fullAxes, unfoldedVolume } from './analyze3d.ts';
 import type { Mesh } from './mesh.ts';
+import type { Space3d } from './space3d.ts';
 import type { Simulation } from './simulate.ts';
 
 /**
@@ -14,6 +16,8 @@ export interface Field {
   layers: Record<string, NdArray<Float64Array>>;
   donors: Float64Array;
   acceptors: Float64Array;
+  /** a 3D solve's domain: the layers are then [nz, ny, nx] on its solved part (analyze3d.ts) */
+  space?: Space3d | null;
 }
 
 export function buildField(sim: Simulation): Field {
@@ -45,8 +49,19 @@ function difference(out: Float64Array, a: Float64Array, b: Float64Array): void {
   for (let k = 0; k < out.length; k++) out[k] = a[k] - b[k];
 }
 
-/** All layers stacked into one [layers, nz, nx] buffer, for a file or a worker message. */
+/**
+ * All layers stacked into one [layers, nz, nx] buffer ([layers, nz, ny, nx] in 3D, the
+ * mirrored parts unfolded to the full cross-section), for a file or a worker message.
+ */
 export function stackLayers(field: Field): Float64Array {
+  if (field.space) {
+    const { space } = field;
+    const axes = fullAxes(space);
+    const cells = axes.x.length * axes.y.length * space.mesh.nz;
+    const out = new Float64Array(field.names.length * cells);
+    field.names.forEach((name, k) => unfoldedVolume(space, field.layers[name].data, out, k * cells));
+    return out;
+  }
   const cells = field.mesh.nx * field.mesh.nz;
   const out = new Float64Array(field.names.length * cells);
   field.names.forEach((name, k) => out.set(field.layers[name].data, k * cells));

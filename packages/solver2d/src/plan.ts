@@ -1,6 +1,7 @@
 import { intrinsicDiffusivity, type DopantType } from './dopants.ts';
-import type { Mask, Window } from './mask.ts';
+import type { Mask } from './mask.ts';
 import type { Mesh } from './mesh.ts';
+import type { Space3d } from './space3d.ts';
 import { profileReach, sizeMesh } from './mesh-sizing.ts';
 import type { Recipe, Step } from './recipe.ts';
 import { checkRecipe, resolveDopant } from './recipe-checks.ts';
@@ -26,6 +27,8 @@ export interface Plan {
   steps: StepPlan[];
   mesh: Mesh;
   mask: Mask;
+  /** the 3D domain of a recipe with mask.rectangles (then `mesh` is its x–z section and `mask` has no windows), else null */
+  space: Space3d | null;
   numerics: Numerics;
   /** ∫D dt per species over the whole recipe (intrinsic D), µm² */
   thermalBudgetUm2: Record<string, number>;
@@ -131,11 +134,17 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
   const thermalBudgetUm2: Record<string, number> = {};
   for (const s of species) thermalBudgetUm2[s.name] = steps.reduce((sum, st) => sum + (st.budgetUm2[s.name] ?? 0), 0);
   const profile = profileReach(steps, species, thermalBudgetUm2, background);
-  const { mesh, mask } = sizeMesh(recipe, recipe.mask.windows as Window[], profile, limits, warnings);
+  if (recipe.mask.rectangles) {
+    const nonlinear = species.filter((s) => s.model !== 'intrinsic');
+    if (nonlinear.length > 0) {
+      throw new RecipeError('diffusion.model', `must be "intrinsic" for a 3D plan view (mask.rectangles): the 3D solve takes concentration-independent D only, and ${nonlinear.map((s) => s.name).join(', ')} would take the ${nonlinear[0].model} model; set "diffusion": { "model": "intrinsic" }`);
+    }
+  }
+  const { mesh, mask, space } = sizeMesh(recipe, recipe.mask.windows ?? [], profile, limits, warnings);
   return {
     recipe,
     substrate: { dopant: recipe.substrate.dopant, type: substrateDopant.type, concentrationCm3: background },
-    species, steps, mesh, mask,
+    species, steps, mesh, mask, space,
     numerics: { stepGrowth: recipe.numerics?.stepGrowth ?? DEFAULT_STEP_GROWTH, startupSteps: recipe.numerics?.startupSteps ?? 3 },
     thermalBudgetUm2, reachUm: profile.reachUm, limits, warnings,
   };

@@ -2,6 +2,7 @@ import { BUILTIN_DOPANTS, type Dopant } from './dopants.ts';
 import { windowOrder, type Window } from './mask.ts';
 import type { Recipe } from './recipe.ts';
 import { RecipeError } from './recipe-terms.ts';
+import { checkRectangles } from './space3d.ts';
 
 /*
  * Checks of a recipe that its schema cannot make, across fields: windows against the
@@ -33,6 +34,12 @@ function checkWindows(windows: readonly Window[], widthUm: number): void {
   }
 }
 
+
+/** The windows of a 2D recipe; a 3D one (mask.rectangles) has none, which `purpose` cannot take. */
+export function windowsOf(recipe: Recipe, purpose: string): [number, number][] {
+  if (recipe.mask.windows === undefined) throw new RecipeError('mask.windows', `is required ${purpose} (this recipe has mask.rectangles, a 3D plan view)`);
+  return recipe.mask.windows;
+}
 
 /** A dopant by name: the recipe's own definition, else the built-in table's. */
 export function resolveDopant(recipe: Recipe, name: string, field: string): Dopant {
@@ -70,7 +77,14 @@ function checkFilmTiming(recipe: Recipe): void {
 
 /** Every cross-field check, in the order a reader meets the fields; throws the first RecipeError. */
 export function checkRecipe(recipe: Recipe): void {
-  checkWindows(recipe.mask.windows as Window[], recipe.crossSection.widthUm);
+  const { widthUm, lengthUm } = recipe.crossSection;
+  if (recipe.mask.rectangles) {
+    if (lengthUm === undefined) throw new RecipeError('crossSection.lengthUm', 'is required with mask.rectangles (a 3D plan view): its extent in y, a number above 0 and up to 1e4 µm');
+    checkRectangles(recipe.mask.rectangles, widthUm, lengthUm);
+  } else {
+    if (lengthUm !== undefined) throw new RecipeError('crossSection.lengthUm', 'is for a 3D plan view (mask.rectangles); a 2D cross-section (mask.windows) has none: remove it');
+    checkWindows(recipe.mask.windows ?? [], widthUm);
+  }
   resolveDopant(recipe, recipe.substrate.dopant, 'substrate.dopant');
   const introduced = new Set<string>();
   recipe.steps.forEach((step, k) => {

@@ -88,6 +88,10 @@ const windowPair = z.tuple([coordinate, coordinate], {
   error: explain('a window [x0, x1] of two numbers in µm'),
 });
 
+const rectangle = z.tuple([coordinate, coordinate, coordinate, coordinate], {
+  error: explain('a rectangle [x0, y0, x1, y1] of four numbers in µm'),
+});
+
 const predeposition = strict({
   kind: z.literal('predeposition'),
   dopant: dopantName,
@@ -183,11 +187,21 @@ export const recipeSchema = strict({
   schema: z.literal(RECIPE_SCHEMA_ID, { error: explain(`"${RECIPE_SCHEMA_ID}"`) }).optional(),
   title: z.string({ error: explain('text') }).max(500, { error: explain('text of at most 500 characters') }).optional(),
   substrate: strict({ dopant: dopantName, concentrationCm3: num('cm^-3', 1e10, 1e21) }),
-  crossSection: strict({ widthUm: num('µm', 0, 1e4, true), depthUm: num('µm', 0, 1e3, true).optional() }),
+  crossSection: strict({ widthUm: num('µm', 0, 1e4, true), lengthUm: num('µm', 0, 1e4, true).optional(), depthUm: num('µm', 0, 1e3, true).optional() }),
   mask: strict({
     windows: z.array(windowPair, { error: explain('a list of windows [x0, x1] in µm') })
       .min(1, { error: 'must list at least one window [x0, x1] in µm' })
-      .max(256, { error: 'must list at most 256 windows' }),
+      .max(256, { error: 'must list at most 256 windows' }).optional(),
+    rectangles: z.array(rectangle, { error: explain('a list of rectangles [x0, y0, x1, y1] in µm') })
+      .min(1, { error: 'must list at least one rectangle [x0, y0, x1, y1] in µm' })
+      .max(64, { error: 'must list at most 64 rectangles' }).optional(),
+  }).superRefine((mask, ctx) => {
+    // A 2D cross-section (windows) or a 3D plan view (rectangles): one or the other.
+    if (mask.windows !== undefined && mask.rectangles !== undefined) {
+      ctx.addIssue({ code: 'custom', path: ['rectangles'], message: 'cannot be given with mask.windows: windows [x0, x1] make a 2D cross-section, rectangles [x0, y0, x1, y1] a 3D plan view; give one of them' });
+    } else if (mask.windows === undefined && mask.rectangles === undefined) {
+      ctx.addIssue({ code: 'custom', path: ['windows'], message: 'is required: a list of windows [x0, x1] in µm (2D cross-section), or give mask.rectangles [x0, y0, x1, y1] in µm (3D)' });
+    }
   }),
   diffusion: diffusion.optional(),
   dopants: z.record(dopantName, userDopant, { error: explain('an object of dopant name → { type, D0Cm2PerS, EaEv }') }).optional(),

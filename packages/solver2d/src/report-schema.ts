@@ -62,15 +62,42 @@ const pairSpacing = z.strictObject({
   errors: errorBars(SPACING_ERROR_KEYS, 'µm').optional(),
 });
 
+const edgeLengths = z.strictObject({ left: length, right: length, bottom: length, top: length });
+const cornerLengths = z.strictObject({ bottomLeft: length, bottomRight: length, topLeft: length, topRight: length });
+const cornerKind = z.enum(['convex', 'concave']).nullable();
+
+const rectangleReport = z.strictObject({
+  x0Um: z.number(),
+  y0Um: z.number(),
+  x1Um: z.number(),
+  y1Um: z.number(),
+  junctionDepthUm: length.describe('shallowest junction below the rectangle\'s centre, µm'),
+  edgeReachUm: edgeLengths.describe('reach of the surface junction beyond each edge at its middle, along the outward normal, µm; null where that middle is not on the window\'s outline'),
+  cornerReachUm: cornerLengths.describe('reach beyond each corner along the diagonal pointing away from the window, µm; null where it is not a corner of the outline'),
+  cornerKind: z.strictObject({ bottomLeft: cornerKind, bottomRight: cornerKind, topLeft: cornerKind, topRight: cornerKind }),
+  cornerToEdgeRatio: cornerLengths.describe('each corner\'s reach over the mean of the rectangle\'s edge reaches'),
+  errors: z.strictObject({ junctionDepthUm: length, edgeReachUm: edgeLengths, cornerReachUm: cornerLengths }).optional()
+    .describe('numerical error of each length named, µm: Richardson extrapolation from coarser solves'),
+});
+
 const ledgerEntry = z.strictObject({ enteredCm2: z.number(), inSiliconCm2: z.number(), relativeImbalance: z.number() });
 
 export const reportSchema = z.strictObject({
   schema: z.literal(REPORT_SCHEMA_ID),
   title: z.string().nullable(),
   substrate: z.strictObject({ dopant: z.string(), type: z.string(), concentrationCm3: z.number() }),
-  crossSection: z.strictObject({ widthUm: z.number(), depthUm: z.number() }),
-  mesh: z.strictObject({ columns: z.number().int(), rows: z.number().int(), finestXUm: z.number(), finestZUm: z.number() }),
+  crossSection: z.strictObject({ widthUm: z.number(), depthUm: z.number(), lengthUm: z.number().optional().describe('3D: the plan view\'s extent in y, µm') }),
+  mesh: z.strictObject({
+    columns: z.number().int(), rows: z.number().int(), finestXUm: z.number(), finestZUm: z.number(),
+    columnsY: z.number().int().optional().describe('3D: cells along y of the solved part'), finestYUm: z.number().optional(),
+  }),
   windows: z.array(windowReport),
+  rectangles: z.array(rectangleReport).optional().describe('3D (mask.rectangles): per rectangle, in the order given'),
+  plan: z.strictObject({
+    outlines: z.array(z.strictObject({ polylinesUm: z.array(z.array(point)) })).describe('each junction\'s outline at the surface, polylines in (x, y), µm'),
+    mirrorX: z.boolean().describe('the solve used the mirror plane x = W/2'),
+    mirrorY: z.boolean().describe('the solve used the mirror plane y = L/2'),
+  }).optional().describe('3D: the plan view'),
   spacings: z.array(pairSpacing).optional().describe('neighbouring windows in x order'),
   mobility: z.strictObject({ carrier: z.enum(['electron', 'hole']), fit: z.string(), source: z.string() }).optional(),
   errorEstimate: z.strictObject({
@@ -86,7 +113,11 @@ export const reportSchema = z.strictObject({
     index: z.number().int(), kind: z.string(), temperatureC: z.union([z.number(), z.tuple([z.number(), z.number()])]).nullable(), minutes: z.number(), timeSteps: z.number().int(),
     thermalBudgetUm2: counts,
   })),
-  field: z.strictObject({ layers: z.array(z.string()), shape: z.tuple([z.number().int(), z.number().int(), z.number().int()]) }),
+  field: z.strictObject({
+    layers: z.array(z.string()),
+    shape: z.union([z.tuple([z.number().int(), z.number().int(), z.number().int()]), z.tuple([z.number().int(), z.number().int(), z.number().int(), z.number().int()])])
+      .describe('[layers, nz, nx], or [layers, nz, ny, nx] in 3D'),
+  }),
   warnings: z.array(z.string()),
 });
 

@@ -4,6 +4,7 @@ import { RecipeError } from './recipe-terms.ts';
 import { addImplant } from './implant.ts';
 import { temperatureAt, type Plan, type SpeciesPlan, type StepPlan } from './plan.ts';
 import { keepLayout } from './layouts.ts';
+import { simulate3d } from './simulate3d.ts';
 import { finestX, finestZ } from './mesh.ts';
 import { isSealed, sourcePeaks, speedupOf, StepClock, type ProfileAges } from './step-clock.ts';
 import { concentrationFromDose, doseFromConcentrationUm } from './units.ts';
@@ -64,6 +65,7 @@ export class StoppedError extends Error {
 
 /** Runs the recipe's steps in order; every species present diffuses during every timed step. */
 export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation {
+  if (plan.space) return simulate3d(plan, plan.space, options);
   // The plan holds the mesh, mask, species and steps the loops below read.
   const { mesh, mask, species, steps } = keepLayout(plan, 'plan');
   const cells = mesh.nx * mesh.nz;

@@ -2,6 +2,7 @@ import { analyze } from './analyze.ts';
 import { richardsonError } from './error-bars.ts';
 import { coarsenedRecipe } from './error-estimate.ts';
 import { windowOrder } from './mask.ts';
+import { windowsOf } from './recipe-checks.ts';
 import { planRecipe, type PlanLimits } from './plan.ts';
 import type { Recipe } from './recipe.ts';
 import { simulate } from './simulate.ts';
@@ -53,7 +54,8 @@ const MAX_WIDENINGS = 12;
 
 /** The two-window recipe with a stripe of `stripeUm` between the windows. */
 export function pairRecipe(recipe: Recipe, stripeUm: number): Recipe {
-  const sorted = windowOrder(recipe.mask.windows).map((k) => recipe.mask.windows[k]);
+  const given = windowsOf(recipe, 'for a search over the stripe between two windows');
+  const sorted = windowOrder(given).map((k) => given[k]);
   const width = recipe.crossSection.widthUm;
   const [a0, a1] = sorted[0];
   const [b0, b1] = sorted.length > 1 ? sorted[1] : sorted[0];

@@ -78,6 +78,22 @@ export function windowTable(report: Report): string {
   );
 }
 
+/** 3D: per rectangle, the junction depth and the reach at each edge's middle and each corner (concave corners marked ^). */
+export function rectangleTable(report: Report): string {
+  const corner = (r: NonNullable<Report['rectangles']>[number], c: 'bottomLeft' | 'bottomRight' | 'topLeft' | 'topRight') =>
+    `${fmtPlusMinus(r.cornerReachUm[c], r.errors?.cornerReachUm[c])}${r.cornerKind[c] === 'concave' ? ' ^' : ''}`;
+  return table(
+    ['rect', 'x0,y0 – x1,y1 µm', 'xj µm', 'left µm', 'right µm', 'bottom µm', 'top µm', 'corner BL µm', 'BR µm', 'TL µm', 'TR µm'],
+    (report.rectangles ?? []).map((r, k) => [
+      String(k + 1), `${fmtLength(r.x0Um, 2)},${fmtLength(r.y0Um, 2)} – ${fmtLength(r.x1Um, 2)},${fmtLength(r.y1Um, 2)}`,
+      fmtPlusMinus(r.junctionDepthUm, r.errors?.junctionDepthUm),
+      fmtPlusMinus(r.edgeReachUm.left, r.errors?.edgeReachUm.left), fmtPlusMinus(r.edgeReachUm.right, r.errors?.edgeReachUm.right),
+      fmtPlusMinus(r.edgeReachUm.bottom, r.errors?.edgeReachUm.bottom), fmtPlusMinus(r.edgeReachUm.top, r.errors?.edgeReachUm.top),
+      corner(r, 'bottomLeft'), corner(r, 'bottomRight'), corner(r, 'topLeft'), corner(r, 'topRight'),
+    ]),
+  );
+}
+
 /** A resistance to 4 significant figures, with its error bar to 1 where there is one. */
 function fmtResistance(v: number | null | undefined, e: number | null | undefined): string {
   if (v === null || v === undefined) return '—';
@@ -145,6 +161,11 @@ export function summary({ report }: Analysis, seconds: number, errorSeconds: num
   const spacing = report.spacings && report.spacings.length > 0 ? `\n\n${spacingTable(report)}` : '';
   const stacked = report.windows.some((w) => (w.layerStack?.length ?? 0) > 1) ? `\n\n${layerTable(report)}` : '';
   const mobility = report.mobility ? `\nmobility: ${report.mobility.carrier}s, ${report.mobility.fit} fit of ${report.mobility.source}` : '';
+  if (report.rectangles) {
+    const mesh3d = `mesh ${report.mesh.columns} × ${report.mesh.columnsY} × ${report.mesh.rows}${report.plan?.mirrorX || report.plan?.mirrorY ? ' (the part left by the mirror planes)' : ''} ` +
+      `(finest ${report.mesh.finestXUm} µm across, ${report.mesh.finestZUm} µm down), ${report.steps.reduce((n, s) => n + s.timeSteps, 0)} time steps, ${seconds.toFixed(2)} s`;
+    return `${head}${mesh3d}\n${errors}\n${rectangleTable(report)}\n\ndose per open area: ${doses}\nthermal budget ∫D dt: ${budgets}`;
+  }
   return `${head}${mesh}\n${errors}\n${windowTable(report)}\n\n${resistanceTable(report)}${stacked}${spacing}\n\n` +
     `dose per open area: ${doses}\nthermal budget ∫D dt: ${budgets}${mobility}`;
 }

@@ -58,7 +58,8 @@ export function spacingCommand(args: string[]): number {
   const recipe = parseRecipe(readRecipeFile(recipePath));
   planRecipe(recipe); // bad recipes fail here, before any search
   const log = values.quiet ? null : process.stderr;
-  if (recipe.mask.windows.length > 2) log?.write(`note: the search uses the first two windows of the recipe (by x) and drops the other ${recipe.mask.windows.length - 2}\n`);
+  const windowCount = recipe.mask.windows?.length ?? 0;
+  if (windowCount > 2) log?.write(`note: the search uses the first two windows of the recipe (by x) and drops the other ${windowCount - 2}\n`);
   const started = performance.now();
   let mesh = 'h';
   let result: StripeSearchWithError;

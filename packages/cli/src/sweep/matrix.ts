@@ -177,7 +177,7 @@ export function buildMatrix(input: unknown, request: SweepRequest): SweepMatrix 
     parameters, runs,
     sweepSha256: sha256(runs.map((r) => r.recipeSha256).join('\n')),
     title: recipe.title ?? null,
-    windows: recipe.mask.windows.length,
+    windows: (recipe.mask.windows ?? recipe.mask.rectangles ?? []).length,
     base,
   };
 }

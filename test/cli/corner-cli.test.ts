@@ -1,0 +1,74 @@
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { edgewise, tempDir } from '../support/cli.ts';
+
+/** A 3D recipe (mask.rectangles) of the test dopant: a film, then a short drive-in; invented. */
+function recipe(mask: Record<string, unknown>, crossSection: Record<string, number> = { widthUm: 12, lengthUm: 10 }, extra: Record<string, unknown> = {}) {
+  return {
+    title: 'test: 3D film (invented)',
+    substrate: { dopant: 'P', concentrationCm3: 1e16 },
+    crossSection, mask,
+    dopants: { Q: { type: 'acceptor', D0Cm2PerS: 1, EaEv: 3.5 } },
+    mesh: { refine: 0.4 },
+    steps: [{ kind: 'film', dopant: 'Q', doseCm2: 1e15 }, { kind: 'drive-in', temperatureC: 1050, minutes: 300 }],
+    ...extra,
+  };
+}
+
+const dir = tempDir('edgewise-corner-');
+
+describe('edgewise run on a 3D recipe', () => {
+  it('writes field.npy [layers, nz, ny, nx], x/y/z.npy, plan.svg and a report with rectangles and outlines', () => {
+    const path = join(dir, 'l-shape.json');
+    writeFileSync(path, JSON.stringify(recipe({ rectangles: [[2, 2, 8, 5], [2, 5, 5, 8]] })));
+    const out = join(dir, 'l-out');
+    const r = edgewise(['run', path, '--out', out, '--error-solves', '1', '--quiet']);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/corner BL µm/);
+    for (const f of ['field.npy', 'x.npy', 'y.npy', 'z.npy', 'plan.svg', 'report.json', 'recipe.json']) expect(existsSync(join(out, f))).toBe(true);
+    const report = JSON.parse(readFileSync(join(out, 'report.json'), 'utf8'));
+    expect(report.rectangles).toHaveLength(2);
+    expect(report.rectangles[1].cornerKind.bottomRight).toBe('concave');
+    expect(typeof report.rectangles[0].errors.cornerReachUm.bottomRight).toBe('number');
+    expect(report.plan.outlines.length).toBeGreaterThan(0);
+    const [layers, nz, ny, nx] = report.field.shape;
+    // The .npy header states the shape; the data are float64 (NumPy format 1.0).
+    const npy = readFileSync(join(out, 'field.npy'));
+    const headerLength = npy.readUInt16LE(8);
+    expect(npy.subarray(10, 10 + headerLength).toString('latin1')).toContain(`'shape': (${layers}, ${nz}, ${ny}, ${nx})`);
+    expect(npy.length - 10 - headerLength).toBe(8 * layers * nz * ny * nx);
+    expect(readFileSync(join(out, 'plan.svg'), 'utf8')).toMatch(/<polyline/);
+  });
+});
+
+describe('bad 3D input: one line naming the field, exit 2, nothing written', () => {
+  const cases: { name: string; recipe: unknown; args?: string[]; line: RegExp }[] = [
+    { name: 'windows and rectangles together', recipe: recipe({ windows: [[1, 2]], rectangles: [[2, 2, 8, 5]] }),
+      line: /^edgewise: bad recipe: mask\.rectangles: cannot be given with mask\.windows: .*give one of them$/ },
+    { name: 'overlapping rectangles', recipe: recipe({ rectangles: [[2, 2, 8, 5], [4, 4, 6, 8]] }),
+      line: /^edgewise: bad recipe: mask\.rectangles\[1\]: overlaps mask\.rectangles\[0\] .*may touch along an edge.*not overlap/ },
+    { name: 'a rectangle outside the cross-section', recipe: recipe({ rectangles: [[2, 2, 8, 11]] }),
+      line: /^edgewise: bad recipe: mask\.rectangles\[0\]: must lie inside the cross-section \[0, 12\] × \[0, 10\] µm/ },
+    { name: 'no lengthUm', recipe: recipe({ rectangles: [[2, 2, 8, 5]] }, { widthUm: 12 }),
+      line: /^edgewise: bad recipe: crossSection\.lengthUm: is required with mask\.rectangles/ },
+    { name: 'a mesh above the limit', recipe: recipe({ rectangles: [[2, 2, 8, 5]] }), args: ['--max-mesh-points', '1000'],
+      line: /^edgewise: bad recipe: mesh: would need \d+ mesh points \(\d+ × \d+ × \d+, about \d+ MiB\), above the limit of 1000/ },
+    { name: 'the charged-defect model', recipe: { ...recipe({ rectangles: [[2, 2, 8, 5]] }), diffusion: { model: 'charged-defect' } },
+      line: /^edgewise: bad recipe: diffusion\.model: must be "intrinsic" for a 3D plan view/ },
+  ];
+  for (const c of cases) {
+    it(c.name, () => {
+      const path = join(dir, `${c.name.replace(/\W+/g, '-')}.json`);
+      writeFileSync(path, JSON.stringify(c.recipe));
+      const out = join(dir, `bad-${c.name.replace(/\W+/g, '-')}`);
+      const r = edgewise(['run', path, '--out', out, '--quiet', ...(c.args ?? [])]);
+      expect(r.code).toBe(2);
+      const lines = r.stderr.trimEnd().split('\n');
+      expect(lines).toHaveLength(1);
+      expect(lines[0]).toMatch(c.line);
+      expect(existsSync(out)).toBe(false);
+    });
+  }
+});
