@@ -34,7 +34,7 @@ export interface LedgerEntry {
   relativeImbalance: number;
 }
 
-interface StepRecord {
+export interface StepRecord {
   index: number;
   kind: string;
   timeSteps: number;
