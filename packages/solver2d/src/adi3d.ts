@@ -32,8 +32,10 @@ import { factorTridiagonal } from './tridiagonal.ts';
  * Memory: the field is x-contiguous ((k·ny + j)·nx + i). The x sweep solves contiguous
  * lines, four at a time with their recurrences interleaved; the y and z sweeps run their
  * Thomas recurrences for a whole row (y) or plane (z) of lines at once, the inner loop
- * along contiguous x, so that every sweep streams through memory and no transposition is
- * needed. A held step's surface lines (x and y lines of plane 0, open cells as identity rows)
+ * along contiguous x, so that no transposition is needed. A step is two passes over the
+ * field: forward, plane by plane, the right-hand side, the x and y solves of the plane (in
+ * cache) and the plane's step of the z elimination; backward, the z substitution, each
+ * plane added to C once final. A held step's surface lines (x and y lines of plane 0, open cells as identity rows)
  * are factorised line by line; its z columns take one of two shared factors, free or held
  * at node 0, by runs of the surface mask. One buffer of the field's size (the increment) is
  * the stepper's; `step` allocates nothing.
@@ -190,17 +192,22 @@ export class AdiStepper3d {
    */
   step(c: Float64Array, nu: number, scheme: Scheme3d, held: boolean): number {
     const before = held ? this.content(c) : 0;
-    if (scheme === 'douglas-gunn') {
-      this.prepare(0.5 * nu);
-      const d = this.delta;
-      this.residual(c, d, nu);
-      if (held) clearHeld(d, this.open);
-      this.sweeps(d, held);
-      addInto(c, d);
-    } else {
-      this.prepare(nu);
-      this.sweeps(c, held);
+    const dg = scheme === 'douglas-gunn';
+    this.prepare(dg ? 0.5 * nu : nu);
+    const d = dg ? this.delta : c;
+    const { nz } = this;
+    // Forward, plane by plane: the increment's right-hand side (Douglas–Gunn), the x and y
+    // solves of the plane while it is in cache, and the plane's step of the z elimination.
+    for (let k = 0; k < nz; k++) {
+      if (dg) {
+        this.residualPlane(c, d, nu, k);
+        if (held && k === 0) clearHeld(d, this.open);
+      }
+      this.planeSolves(d, k, held && k === 0);
+      this.zForward(d, k, held);
     }
+    // Backward: the z substitution, and each plane added to c as soon as it is final.
+    this.zBackward(c, d, held, dg);
     return held ? this.content(c) - before : 0;
   }
 
@@ -215,45 +222,77 @@ export class AdiStepper3d {
 
   private beta = 0;
 
-  /** out = ν·(Ax + Ay + Az) c, plane by plane and row by row. */
-  private residual(c: Float64Array, out: Float64Array, nu: number): void {
+  /** Plane k of out = ν·(Ax + Ay + Az) c, row by row. */
+  private residualPlane(c: Float64Array, out: Float64Array, nu: number, k: number): void {
     const { nx, ny, nz, plane, ax, cx, ay, cy, az, cz } = this;
-    for (let k = 0; k < nz; k++) {
-      const zm = k > 0 ? -plane : 0;
-      const zp = k < nz - 1 ? plane : 0;
-      for (let j = 0; j < ny; j++) {
-        const ym = j > 0 ? -nx : 0;
-        const yp = j < ny - 1 ? nx : 0;
-        residualRow(c, out, (k * ny + j) * nx, nx, ax, cx, nu * ay[j], nu * cy[j], nu * az[k], nu * cz[k], ym, yp, zm, zp, nu);
-      }
+    const zm = k > 0 ? -plane : 0;
+    const zp = k < nz - 1 ? plane : 0;
+    for (let j = 0; j < ny; j++) {
+      const ym = j > 0 ? -nx : 0;
+      const yp = j < ny - 1 ? nx : 0;
+      residualRow(c, out, (k * ny + j) * nx, nx, ax, cx, nu * ay[j], nu * cy[j], nu * az[k], nu * cz[k], ym, yp, zm, zp, nu);
     }
   }
 
-  /** The three implicit sweeps, in place on `d`. */
-  private sweeps(d: Float64Array, held: boolean): void {
-    const { nx, ny, nz, plane, open, beta } = this;
-    // x: lines of plane 0 held where open when held; every other line shares one factor.
-    let firstShared = 0;
-    if (held) {
+  /** The x solves of plane k's rows and the y solves of its columns, in place; `masked`: the held surface plane. */
+  private planeSolves(d: Float64Array, k: number, masked: boolean): void {
+    const { nx, ny, plane, open, beta } = this;
+    if (masked) {
       for (let j = 0; j < ny; j++) maskedLine(d, j * nx, 1, nx, this.ax, this.cx, beta, open, j * nx, 1, this.lineCp);
-      firstShared = ny;
-    }
-    xLines(d, this.fx, nx, firstShared, ny * nz);
-    // y: row by row of each plane; plane 0 line by line when held.
-    let firstPlane = 0;
-    if (held) {
       for (let i = 0; i < nx; i++) maskedLine(d, i, nx, ny, this.ay, this.cy, beta, open, i, nx, this.lineCp);
-      firstPlane = 1;
+      return;
     }
-    for (let k = firstPlane; k < nz; k++) linesAcross(d, k * plane, nx, ny, this.fy, 0, nx);
-    // z: plane by plane, by runs of the mask when held.
+    xLines(d, this.fx, nx, k * ny, (k + 1) * ny);
+    linesAcross(d, k * plane, nx, ny, this.fy, 0, nx);
+  }
+
+  /** Plane k's step of the z forward elimination (runs of the mask pick the factor when held). */
+  private zForward(d: Float64Array, k: number, held: boolean): void {
     const starts = held ? this.runStart : this.allStart;
     const ends = held ? this.runEnd : this.allEnd;
     const kinds = held ? this.runOpen : this.noneOpen;
+    const o = k * this.plane;
     for (let r = 0; r < starts.length; r++) {
-      linesAcross(d, 0, plane, nz, kinds[r] === 1 ? this.fzHeld : this.fz, starts[r], ends[r]);
+      const f = kinds[r] === 1 ? this.fzHeld : this.fz;
+      if (k === 0) scaleRange(d, o + starts[r], o + ends[r], f.inv[0]);
+      else eliminateRange(d, o, o - this.plane, starts[r], ends[r], f.l[k], f.inv[k]);
     }
   }
+
+  /** The z back substitution from the bottom plane up; with `add`, c += d plane by plane once final. */
+  private zBackward(c: Float64Array, d: Float64Array, held: boolean, add: boolean): void {
+    const { nz, plane } = this;
+    const starts = held ? this.runStart : this.allStart;
+    const ends = held ? this.runEnd : this.allEnd;
+    const kinds = held ? this.runOpen : this.noneOpen;
+    for (let k = nz - 2; k >= 0; k--) {
+      const o = k * plane;
+      for (let r = 0; r < starts.length; r++) {
+        const f = kinds[r] === 1 ? this.fzHeld : this.fz;
+        substituteRange(d, o, o + plane, starts[r], ends[r], f.cp[k]);
+      }
+      if (add) addRange(c, d, o + plane, o + 2 * plane);
+    }
+    if (add) addRange(c, d, 0, plane);
+  }
+}
+
+function scaleRange(d: Float64Array, from: number, to: number, factor: number): void {
+  for (let p = from; p < to; p++) d[p] *= factor;
+}
+
+/** d[o + p] = (d[o + p] − l·d[prev + p])·inv for p in [from, to). */
+function eliminateRange(d: Float64Array, o: number, prev: number, from: number, to: number, l: number, inv: number): void {
+  for (let p = from; p < to; p++) d[o + p] = (d[o + p] - l * d[prev + p]) * inv;
+}
+
+/** d[o + p] −= cp·d[next + p] for p in [from, to). */
+function substituteRange(d: Float64Array, o: number, next: number, from: number, to: number, cp: number): void {
+  for (let p = from; p < to; p++) d[o + p] -= cp * d[next + p];
+}
+
+function addRange(c: Float64Array, d: Float64Array, from: number, to: number): void {
+  for (let p = from; p < to; p++) c[p] += d[p];
 }
 
 function rowContent(c: Float64Array, base: number, volume: Float64Array, n: number): number {
@@ -264,10 +303,6 @@ function rowContent(c: Float64Array, base: number, volume: Float64Array, n: numb
 
 function clearHeld(d: Float64Array, open: Uint8Array): void {
   for (let p = 0; p < open.length; p++) if (open[p] === 1) d[p] = 0;
-}
-
-function addInto(c: Float64Array, d: Float64Array): void {
-  for (let p = 0; p < c.length; p++) c[p] += d[p];
 }
 
 /** I − β·A of one axis (identity at node 0 when `heldFirst`), factorised into `f`. */
