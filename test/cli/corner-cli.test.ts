@@ -43,6 +43,41 @@ describe('edgewise run on a 3D recipe', () => {
   });
 });
 
+describe('edgewise sweep on a 3D recipe', () => {
+  it('sweeps a rectangle\'s size with --set: one row per run with each rectangle\'s depth and reaches; --resume reuses the finished runs', () => {
+    const path = join(dir, 'square.json');
+    writeFileSync(path, JSON.stringify(recipe({ rectangles: [[3, 3, 7, 7]] }, { widthUm: 10, lengthUm: 10 })));
+    const out = join(dir, 'sweep-out');
+    const r = edgewise(['sweep', path, '--set', 'mask.rectangles[0][2]=6,7', '--out', out, '--error-solves', '0', '--jobs', '1', '--quiet']);
+    expect(r.code).toBe(0);
+    const csv = readFileSync(join(out, 'sweep.csv'), 'utf8').trimEnd().split('\n');
+    const header = csv[0].split(',');
+    expect(header).toContain('cornerTopRightUm');
+    expect(header).toContain('edgeLeftErrorUm');
+    expect(csv).toHaveLength(3);
+    const rows = csv.slice(1).map((l) => Object.fromEntries(l.split(',').map((v, k) => [header[k], v])));
+    // A narrower rectangle (x1 = 6) reaches less deep than the wider one (the narrow-window effect, common practice (no source)).
+    expect(Number(rows[0].junctionDepthUm)).toBeLessThan(Number(rows[1].junctionDepthUm));
+    for (const row of rows) {
+      expect(row.status).toBe('ok');
+      expect(Number(row.cornerTopRightUm)).toBeLessThan(Number(row.edgeRightUm));
+    }
+    expect(JSON.parse(readFileSync(join(out, 'sweep.json'), 'utf8')).rectangles).toBe(true);
+    const again = edgewise(['sweep', path, '--set', 'mask.rectangles[0][2]=6,7', '--out', out, '--error-solves', '0', '--jobs', '1', '--resume']);
+    expect(again.code).toBe(0);
+    expect(again.stderr).toMatch(/2 already finished/);
+  });
+
+  it('--widths on a 3D recipe: one line pointing to --set, exit 2', () => {
+    const path = join(dir, 'square-widths.json');
+    writeFileSync(path, JSON.stringify(recipe({ rectangles: [[3, 3, 7, 7]] }, { widthUm: 10, lengthUm: 10 })));
+    const r = edgewise(['sweep', path, '--widths', '2,3', '--out', join(dir, 'w-out'), '--quiet']);
+    expect(r.code).toBe(2);
+    expect(r.stderr.trimEnd().split('\n')).toHaveLength(1);
+    expect(r.stderr).toMatch(/--widths: resizes the windows of a 2D recipe .*--set, e\.g\. mask\.rectangles\[0\]\[2\]=/);
+  });
+});
+
 describe('bad 3D input: one line naming the field, exit 2, nothing written', () => {
   const cases: { name: string; recipe: unknown; args?: string[]; line: RegExp }[] = [
     { name: 'windows and rectangles together', recipe: recipe({ windows: [[1, 2]], rectangles: [[2, 2, 8, 5]] }),

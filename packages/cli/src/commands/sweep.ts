@@ -5,7 +5,7 @@ import { parseArgs } from 'node:util';
 import { parseRecipe, type PlanLimits } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
 import { inside, makeFolders } from '../files.ts';
-import { fmtPlusMinus, fmtRatio, fmtSci, table } from '../format.ts';
+import { fmtLength, fmtPlusMinus, fmtRatio, fmtSci, table } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits } from '../limits.ts';
 import { progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
@@ -171,7 +171,7 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
     const ordered = mine.map((r) => rows.get(r.id)!);
     const doc: SweepDocument = {
       schema: SWEEP_SCHEMA_ID, title: matrix.title,
-      parameters: matrix.parameters.map((p) => p.name), windows: matrix.windows,
+      parameters: matrix.parameters.map((p) => p.name), windows: matrix.windows, ...(matrix.rectangles ? { rectangles: true } : {}),
       total: matrix.runs.length, shard, sweepSha256: matrix.sweepSha256, errorSolves: options.errorSolves,
       runs: mine.map((r, k) => ({
         id: r.id, dir: r.dir, values: r.values, status: ordered[k].status, error: ordered[k].error, recipeSha256: r.recipeSha256,
@@ -288,6 +288,30 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
 /** One line per run (per window when there are several), the swept values first. */
 function summaryTable(matrix: SweepMatrix, rows: readonly RunRow[]): string {
   const names = matrix.parameters.map((p) => p.name);
+  if (matrix.rectangles) {
+    // 3D: per rectangle the depth, the mean edge reach and the smallest and largest corner reach.
+    const header = ['run', ...names, 'rect', 'xj µm', 'edges µm', 'corners µm', 'status'];
+    const body: string[][] = [];
+    const span = (vs: (number | null | undefined)[]) => {
+      const v = vs.filter((x): x is number => typeof x === 'number');
+      if (v.length === 0) return '—';
+      const lo = Math.min(...v);
+      const hi = Math.max(...v);
+      return lo === hi ? fmtLength(lo) : `${fmtLength(lo)}–${fmtLength(hi)}`;
+    };
+    for (const r of rows) {
+      for (let k = 0; k < matrix.windows; k++) {
+        const w = r.windows?.[k];
+        body.push([
+          String(r.id), ...names.map((n) => String(r.values[n])), String(k + 1),
+          fmtPlusMinus(w?.junctionDepthUm ?? null, w?.errors?.junctionDepthUm),
+          span([w?.edgeLeftUm, w?.edgeRightUm, w?.edgeBottomUm, w?.edgeTopUm]),
+          span([w?.cornerBottomLeftUm, w?.cornerBottomRightUm, w?.cornerTopLeftUm, w?.cornerTopRightUm]), r.status,
+        ]);
+      }
+    }
+    return table(header, body);
+  }
   const several = matrix.windows > 1;
   const header = ['run', ...names, ...(several ? ['window'] : []), 'xj µm', 'lateral L µm', 'lateral R µm', 'lateral/xj', 'surface cm^-3', 'status'];
   const body: string[][] = [];
@@ -298,7 +322,7 @@ function summaryTable(matrix: SweepMatrix, rows: readonly RunRow[]): string {
         String(r.id), ...names.map((n) => String(r.values[n])), ...(several ? [String(k + 1)] : []),
         fmtPlusMinus(w?.junctionDepthUm ?? null, w?.errors?.junctionDepthUm), fmtPlusMinus(w?.lateralLeftUm ?? null, w?.errors?.lateralLeftUm),
         fmtPlusMinus(w?.lateralRightUm ?? null, w?.errors?.lateralRightUm),
-        fmtRatio(w?.lateralToVerticalRatio ?? null), w ? fmtSci(w.surfaceConcentrationCm3) : '—', r.status,
+        fmtRatio(w?.lateralToVerticalRatio ?? null), typeof w?.surfaceConcentrationCm3 === 'number' ? fmtSci(w.surfaceConcentrationCm3) : '—', r.status,
       ]);
     }
   }

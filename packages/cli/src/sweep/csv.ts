@@ -1,4 +1,4 @@
-import type { WindowReport } from '@edgewise/solver2d';
+import type { RectangleReport, Report, WindowReport } from '@edgewise/solver2d';
 
 /**
  * sweep.csv: one row per run — id, the swept values, then per window the junction depth,
@@ -23,7 +23,49 @@ const COLUMNS: readonly { name: string; field: Measured | Plain; error?: true }[
 
 export const WINDOW_COLUMNS = COLUMNS.map((c) => c.name);
 
-export type WindowResult = Pick<WindowReport, Measured | Plain> & { errors?: Partial<Record<string, number | null>> };
+/**
+ * A 3D sweep (mask.rectangles) has per rectangle the junction depth and the reach at each
+ * edge's middle and each corner, each with its error bar.
+ */
+const REACHES = [
+  ['edgeLeftUm', (r: RectangleReport) => r.edgeReachUm.left, (e: Errors) => e?.edgeReachUm.left],
+  ['edgeRightUm', (r: RectangleReport) => r.edgeReachUm.right, (e: Errors) => e?.edgeReachUm.right],
+  ['edgeBottomUm', (r: RectangleReport) => r.edgeReachUm.bottom, (e: Errors) => e?.edgeReachUm.bottom],
+  ['edgeTopUm', (r: RectangleReport) => r.edgeReachUm.top, (e: Errors) => e?.edgeReachUm.top],
+  ['cornerBottomLeftUm', (r: RectangleReport) => r.cornerReachUm.bottomLeft, (e: Errors) => e?.cornerReachUm.bottomLeft],
+  ['cornerBottomRightUm', (r: RectangleReport) => r.cornerReachUm.bottomRight, (e: Errors) => e?.cornerReachUm.bottomRight],
+  ['cornerTopLeftUm', (r: RectangleReport) => r.cornerReachUm.topLeft, (e: Errors) => e?.cornerReachUm.topLeft],
+  ['cornerTopRightUm', (r: RectangleReport) => r.cornerReachUm.topRight, (e: Errors) => e?.cornerReachUm.topRight],
+] as const;
+type Errors = RectangleReport['errors'];
+
+const RECTANGLE_COLUMNS: readonly { name: string; field: string; error?: true }[] = [
+  { name: 'junctionDepthUm', field: 'junctionDepthUm' },
+  { name: 'junctionDepthErrorUm', field: 'junctionDepthUm', error: true },
+  ...REACHES.flatMap(([name]) => [{ name, field: name }, { name: name.replace(/Um$/, 'ErrorUm'), field: name, error: true as const }]),
+];
+
+/** One window's (2D) or one rectangle's (3D) results, by column field. */
+export type WindowResult = Partial<Record<string, number | null>> & { errors?: Partial<Record<string, number | null>> };
+
+/** A 3D report's rectangles as rows of results. */
+export function rectangleResults(report: Report): WindowResult[] {
+  return (report.rectangles ?? []).map((r) => {
+    const out: WindowResult = { junctionDepthUm: r.junctionDepthUm };
+    const errors: Partial<Record<string, number | null>> = { junctionDepthUm: r.errors?.junctionDepthUm ?? null };
+    for (const [name, value, error] of REACHES) {
+      out[name] = value(r);
+      errors[name] = error(r.errors) ?? null;
+    }
+    out.errors = errors;
+    return out;
+  });
+}
+
+/** The results a report gives a sweep's rows: its windows, or its rectangles in 3D. */
+export function reportResults(report: Report): WindowResult[] {
+  return report.rectangles ? rectangleResults(report) : (report.windows as WindowReport[]) as unknown as WindowResult[];
+}
 
 export type RunStatus = 'ok' | 'failed' | 'abandoned' | 'pending';
 
@@ -36,10 +78,12 @@ export interface RunRow {
   error: string | null;
 }
 
-export function csvHeader(parameters: readonly string[], windows: number): string[] {
+export function csvHeader(parameters: readonly string[], windows: number, rectangles = false): string[] {
+  const names = (rectangles ? RECTANGLE_COLUMNS : COLUMNS).map((c) => c.name);
+  const prefix = rectangles ? 'r' : 'w';
   const metrics = windows === 1
-    ? [...WINDOW_COLUMNS]
-    : Array.from({ length: windows }, (_, k) => WINDOW_COLUMNS.map((c) => `w${k + 1}.${c}`)).flat();
+    ? [...names]
+    : Array.from({ length: windows }, (_, k) => names.map((c) => `${prefix}${k + 1}.${c}`)).flat();
   return ['id', ...parameters, ...metrics, 'status', 'error'];
 }
 
@@ -50,11 +94,11 @@ export function numberCell(v: number | null | undefined): string {
   return a !== 0 && (a >= 1e6 || a < 1e-4) ? v.toExponential().replace('e+', 'e') : String(v);
 }
 
-export function csvRow(row: RunRow, parameters: readonly string[], windows: number): string[] {
+export function csvRow(row: RunRow, parameters: readonly string[], windows: number, rectangles = false): string[] {
   const metrics: string[] = [];
   for (let k = 0; k < windows; k++) {
     const w = row.windows?.[k];
-    for (const c of COLUMNS) metrics.push(numberCell(c.error ? w?.errors?.[c.field] : w?.[c.field]));
+    for (const c of rectangles ? RECTANGLE_COLUMNS : COLUMNS) metrics.push(numberCell(c.error ? w?.errors?.[c.field] : w?.[c.field]));
   }
   return [String(row.id), ...parameters.map((p) => numberCell(row.values[p])), ...metrics, row.status, row.error ?? ''];
 }

@@ -39,6 +39,8 @@ export interface SweepMatrix {
   title: string | null;
   /** windows in the recipe: sweep.csv has one group of columns per window */
   windows: number;
+  /** a 3D sweep: `windows` counts the recipe's rectangles */
+  rectangles: boolean;
   base: Record<string, unknown>;
 }
 
@@ -92,7 +94,10 @@ function describeValues(values: Record<string, number>): string {
  */
 function resizeWindows(recipe: Record<string, unknown>, width: number, label: string, context: string): void {
   const section = recipe.crossSection as { widthUm: number };
-  const mask = recipe.mask as { windows: [number, number][] };
+  const mask = recipe.mask as { windows?: [number, number][] };
+  if (mask.windows === undefined) {
+    throw new UsageError(`${label}: resizes the windows of a 2D recipe (mask.windows); this recipe has mask.rectangles: sweep their sizes with --set, e.g. mask.rectangles[0][2]=8:1:12`);
+  }
   const sectionWidth = section.widthUm;
   const centres = mask.windows.map(([x0, x1]) => 0.5 * (x0 + x1));
   let fit = Infinity;
@@ -178,6 +183,7 @@ export function buildMatrix(input: unknown, request: SweepRequest): SweepMatrix 
     sweepSha256: sha256(runs.map((r) => r.recipeSha256).join('\n')),
     title: recipe.title ?? null,
     windows: (recipe.mask.windows ?? recipe.mask.rectangles ?? []).length,
+    rectangles: recipe.mask.rectangles !== undefined,
     base,
   };
 }

@@ -23,8 +23,10 @@ export interface SweepDocument {
   schema: typeof SWEEP_SCHEMA_ID;
   title: string | null;
   parameters: string[];
-  /** windows per run; sweep.csv has a group of columns for each */
+  /** windows per run (rectangles in 3D); sweep.csv has a group of columns for each */
   windows: number;
+  /** true for a 3D sweep (mask.rectangles): the columns are each rectangle's depth and reaches */
+  rectangles?: boolean;
   /** runs in the whole sweep (all shards) */
   total: number;
   /** which slice of the sweep this file covers; null for a whole sweep */
@@ -38,7 +40,7 @@ export interface SweepDocument {
 
 /** Writes `<stem>.csv`, then `<stem>.json`; both atomic, so a reader sees an old or a new file, never half of one. */
 export function writeSweepFiles(folder: string, stem: string, doc: SweepDocument, rows: readonly RunRow[]): string[] {
-  const table = [csvHeader(doc.parameters, doc.windows), ...rows.map((r) => csvRow(r, doc.parameters, doc.windows))];
+  const table = [csvHeader(doc.parameters, doc.windows, doc.rectangles), ...rows.map((r) => csvRow(r, doc.parameters, doc.windows, doc.rectangles))];
   writeAtomic(inside(folder, `${stem}.csv`), encodeCsv(table));
   writeAtomic(inside(folder, `${stem}.json`), `${JSON.stringify(doc, null, 2)}\n`);
   return [`${stem}.csv`, `${stem}.json`];

@@ -1,6 +1,7 @@
 import { closeSync, existsSync, fstatSync, openSync, readdirSync, readFileSync, readSync, rmSync } from 'node:fs';
 import { basename, join } from 'node:path';
-import { reportSchema, type Report, type WindowReport } from '@edgewise/solver2d';
+import { reportSchema, type Report } from '@edgewise/solver2d';
+import { reportResults, type WindowResult } from './csv.ts';
 import { recipeSha256 } from './hash.ts';
 import { RECIPE_FILE } from './task.ts';
 
@@ -48,7 +49,7 @@ function npyProblem(path: string, expectedShape: readonly number[]): string | nu
  * report's shape give, contour.csv and contour.svg end as written. A file cut short by a
  * crash, a full disk or a copy that stopped is found here.
  */
-export function runFolderProblem(folder: string, expectedSha256: string, errorSolves: number | null): { problem: string; windows: null } | { problem: null; windows: WindowReport[] } {
+export function runFolderProblem(folder: string, expectedSha256: string, errorSolves: number | null): { problem: string; windows: null } | { problem: null; windows: WindowResult[] } {
   const fail = (problem: string) => ({ problem, windows: null });
   if (!existsSync(folder)) return fail('the folder is missing');
   const read = (name: string) => {
@@ -78,6 +79,18 @@ export function runFolderProblem(folder: string, expectedSha256: string, errorSo
   if (errorSolves !== null && (report.errorEstimate?.meshes?.length ?? 1) !== errorSolves + 1) {
     return fail(`report.json has error bars from ${(report.errorEstimate?.meshes?.length ?? 1) - 1} coarser solves, not ${errorSolves}`);
   }
+  if (report.rectangles) {
+    // 3D: field.npy [layers, nz, ny, nx] over the full plan view, with y.npy, and plan.svg.
+    const [, nz, ny, nx] = report.field.shape as number[];
+    const shapes3d: [string, number[]][] = [['field.npy', report.field.shape], ['x.npy', [nx]], ['y.npy', [ny]], ['z.npy', [nz]]];
+    for (const [name, shape] of shapes3d) {
+      const problem = npyProblem(join(folder, name), shape);
+      if (problem) return fail(problem);
+    }
+    const plan = read('plan.svg');
+    if (plan === null || !plan.endsWith('</svg>\n')) return fail('plan.svg is missing or cut short');
+    return { problem: null, windows: reportResults(report) };
+  }
   const shapes: Record<(typeof NPY_FILES)[number], number[]> = {
     'field.npy': report.field.shape, 'x.npy': [report.mesh.columns], 'z.npy': [report.mesh.rows],
   };
@@ -89,7 +102,7 @@ export function runFolderProblem(folder: string, expectedSha256: string, errorSo
   if (csv === null || !csv.startsWith('junction,point,xUm,zUm\n') || !csv.endsWith('\n')) return fail('contour.csv is missing or cut short');
   const svg = read('contour.svg');
   if (svg === null || !svg.endsWith('</svg>\n')) return fail('contour.svg is missing or cut short');
-  return { problem: null, windows: report.windows };
+  return { problem: null, windows: reportResults(report) };
 }
 
 /**
@@ -97,7 +110,7 @@ export function runFolderProblem(folder: string, expectedSha256: string, errorSo
  * file whole (runFolderProblem), with error bars from as many coarser solves as asked for;
  * otherwise null.
  */
-export function finishedRun(folder: string, expectedSha256: string, errorSolves: number): WindowReport[] | null {
+export function finishedRun(folder: string, expectedSha256: string, errorSolves: number): WindowResult[] | null {
   return runFolderProblem(folder, expectedSha256, errorSolves).windows;
 }
 

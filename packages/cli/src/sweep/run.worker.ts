@@ -6,6 +6,7 @@ import { planRecipe, solveWithErrorBars } from '@edgewise/solver2d';
 import { inside, removeFile, writeAtomic } from '../files.ts';
 import { withLimitHint } from '../limits.ts';
 import { writeRunFolder } from '../output.ts';
+import { reportResults } from './csv.ts';
 import { PROGRESS_OFFSET, RECIPE_FILE, STOP_INDEX, type RunOutcome, type RunTask, type RunWorkerApi } from './task.ts';
 
 /**
@@ -31,7 +32,7 @@ const api: RunWorkerApi = {
     writeRunFolder(task.out, analysis, task.dir);
     writeAtomic(inside(task.out, join(task.dir, RECIPE_FILE)), task.recipeText);
     progress[0] = 1;
-    return { windows: analysis.report.windows, warnings: analysis.report.warnings };
+    return { windows: reportResults(analysis.report), warnings: analysis.report.warnings };
   },
 };
 

@@ -1,4 +1,5 @@
-import type { PlanLimits, Recipe, WindowReport } from '@edgewise/solver2d';
+import type { PlanLimits, Recipe } from '@edgewise/solver2d';
+import type { WindowResult } from './csv.ts';
 
 /** What the main thread sends a worker for one run, and what comes back. */
 export interface RunTask {
@@ -20,7 +21,8 @@ export interface RunTask {
 export type ErrorSolves = 0 | 1 | 2;
 
 export interface RunOutcome {
-  windows: WindowReport[];
+  /** per window (per rectangle in 3D) */
+  windows: WindowResult[];
   warnings: string[];
 }
 
