@@ -78,6 +78,37 @@ describe('edgewise sweep on a 3D recipe', () => {
   });
 });
 
+describe('edgewise spacing on 3D recipes: corner to corner, corner to edge, edge to edge', () => {
+  // Common practice (no source): corners reach less far than edges, so two windows may come
+  // closer corner to corner than corner to edge, and closer corner to edge than edge to edge.
+  const layouts: [string, number[][]][] = [
+    ['corner-to-corner', [[2, 2, 5, 5], [7, 7, 10, 10]]],
+    // The end of a 1 µm line (its two corners) facing the side of a long window.
+    ['corner-to-edge', [[2, 2, 5, 10], [7, 5.5, 10, 6.5]]],
+    ['edge-to-edge', [[2, 2, 5, 10], [7, 2, 10, 10]]],
+  ];
+  const answers: Record<string, { distance: number; gap: number }> = {};
+  for (const [name, rectangles] of layouts) {
+    it(`${name}: the narrowest masked distance keeping a 1 µm gap at the surface`, () => {
+      const path = join(dir, `${name}.json`);
+      writeFileSync(path, JSON.stringify(recipe({ rectangles }, { widthUm: 12, lengthUm: 12 }, { mesh: { refine: 0.3 } })));
+      const out = join(dir, `${name}-spacing`);
+      const r = edgewise(['spacing', path, '--gap', '1', '--tol', '0.01', '--error-solves', '0', '--out', out, '--quiet']);
+      expect(r.code).toBe(0);
+      const file = JSON.parse(readFileSync(join(out, 'spacing.json'), 'utf8'));
+      expect(file.rectangles).toHaveLength(2);
+      expect(file.spacing.merged).toBe(false);
+      expect(file.spacing.minimumGapUm).toBeGreaterThanOrEqual(1);
+      answers[name] = { distance: file.stripeUm, gap: file.spacing.minimumGapUm };
+    });
+  }
+  it('corner to corner < corner to edge < edge to edge', () => {
+    console.log(`3D spacing for a 1 µm gap: ${Object.entries(answers).map(([k, v]) => `${k} ${v.distance.toFixed(3)} µm`).join(', ')}`);
+    expect(answers['corner-to-corner'].distance).toBeLessThan(answers['corner-to-edge'].distance);
+    expect(answers['corner-to-edge'].distance).toBeLessThan(answers['edge-to-edge'].distance);
+  });
+});
+
 describe('bad 3D input: one line naming the field, exit 2, nothing written', () => {
   const cases: { name: string; recipe: unknown; args?: string[]; line: RegExp }[] = [
     { name: 'windows and rectangles together', recipe: recipe({ windows: [[1, 2]], rectangles: [[2, 2, 8, 5]] }),

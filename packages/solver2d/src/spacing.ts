@@ -36,7 +36,7 @@ function pointSegment2(p: Point, a: Point, b: Point): number {
 }
 
 /** Closest approach of two polylines that do not cross, and the midpoint of it. */
-function closestApproach(a: Polyline, b: Polyline): { distance: number; midpoint: Point } {
+export function closestApproach(a: Polyline, b: Polyline): { distance: number; midpoint: Point } {
   let best = Infinity;
   let mid: Point = [NaN, NaN];
   const scan = (points: Polyline, segments: Polyline) => {

@@ -7,6 +7,7 @@ import { planRecipe, type PlanLimits } from './plan.ts';
 import type { Recipe } from './recipe.ts';
 import { simulate } from './simulate.ts';
 import type { PairSpacing } from './spacing.ts';
+import { pairRecipe3d, pairSpacing3d } from './spacing3d.ts';
 
 /**
  * The narrowest masked stripe between two windows that keeps their junctions at least a
@@ -52,8 +53,9 @@ interface StripeSearchOptions {
 /** Most solves spent widening the bracket before giving up. */
 const MAX_WIDENINGS = 12;
 
-/** The two-window recipe with a stripe of `stripeUm` between the windows. */
+/** The two-window recipe with a stripe of `stripeUm` between the windows (3D: two rectangles that far apart, spacing3d.ts). */
 export function pairRecipe(recipe: Recipe, stripeUm: number): Recipe {
+  if (recipe.mask.rectangles) return pairRecipe3d(recipe, stripeUm);
   const given = windowsOf(recipe, 'for a search over the stripe between two windows');
   const sorted = windowOrder(given).map((k) => given[k]);
   const width = recipe.crossSection.widthUm;
@@ -74,7 +76,8 @@ export function pairRecipe(recipe: Recipe, stripeUm: number): Recipe {
 
 function solvePair(recipe: Recipe, stripeUm: number, gapUm: number, limits?: PlanLimits, shouldStop?: () => boolean): StripeSolve {
   const report = analyze(simulate(planRecipe(pairRecipe(recipe, stripeUm), limits), { shouldStop })).report;
-  const spacing = report.spacings![0];
+  // 3D: the masked distance between two rectangles, the gap between their outlines at the surface.
+  const spacing = recipe.mask.rectangles ? pairSpacing3d(report, stripeUm) : report.spacings![0];
   const meets = !spacing.merged && spacing.minimumGapUm !== null && spacing.minimumGapUm >= gapUm;
   return { stripeUm, spacing, meets };
 }

@@ -83,7 +83,7 @@ export function spacingCommand(args: string[]): number {
     stripeErrorUm: result.stripeErrorUm,
     bracketUm: result.bracketUm,
     stripesByMeshUm: result.stripesByMeshUm,
-    windows: result.recipe.mask.windows,
+    ...(result.recipe.mask.rectangles ? { rectangles: result.recipe.mask.rectangles, crossSectionLengthUm: result.recipe.crossSection.lengthUm } : { windows: result.recipe.mask.windows }),
     crossSectionWidthUm: result.recipe.crossSection.widthUm,
     spacing: result.spacing,
     solves: result.solves.map((s) => ({ stripeUm: s.stripeUm, merged: s.spacing.merged, minimumGapUm: s.spacing.minimumGapUm, meets: s.meets })),
@@ -93,7 +93,7 @@ export function spacingCommand(args: string[]): number {
   const error = result.stripeErrorUm;
   const s = result.spacing;
   process.stdout.write([
-    `${recipe.title ? `${recipe.title}\n` : ''}narrowest masked stripe keeping a junction-to-junction gap ≥ ${gapUm} µm: ${fmtPlusMinus(result.stripeUm, error)} µm`,
+    `${recipe.title ? `${recipe.title}\n` : ''}narrowest masked ${recipe.mask.rectangles ? 'distance between the two rectangles (corner to corner, or to an edge, as they face)' : 'stripe'} keeping a junction-to-junction gap ≥ ${gapUm} µm${recipe.mask.rectangles ? ' at the surface' : ''}: ${fmtPlusMinus(result.stripeUm, error)} µm`,
     `bisection to ${toleranceUm} µm: fails at ${fmtLength(result.bracketUm[0], 4)} µm, meets at ${fmtLength(result.bracketUm[1], 4)} µm (${result.solves.length} solves on the default mesh)`,
     `at that stripe: surface gap ${fmtLength(s.surfaceGapUm, 4)} µm, closest approach ${fmtLength(s.minimumGapUm, 4)} µm at depth ${fmtLength(s.minimumGapDepthUm, 4)} µm`,
     error === null ? 'no error bar (--error-solves 0)' : `the same search on meshes ${result.stripesByMeshUm.map((_, k) => (k === 0 ? 'h' : `${2 ** k}h`)).join(', ')}: ${result.stripesByMeshUm.map((v) => v.toFixed(4)).join(', ')} µm (± from Richardson extrapolation)`,
