@@ -121,8 +121,6 @@ describe('bad 3D input: one line naming the field, exit 2, nothing written', () 
       line: /^edgewise: bad recipe: crossSection\.lengthUm: is required with mask\.rectangles/ },
     { name: 'a mesh above the limit', recipe: recipe({ rectangles: [[2, 2, 8, 5]] }), args: ['--max-mesh-points', '1000'],
       line: /^edgewise: bad recipe: mesh: would need \d+ mesh points \(\d+ × \d+ × \d+, about \d+ MiB\), above the limit of 1000/ },
-    { name: 'the charged-defect model', recipe: { ...recipe({ rectangles: [[2, 2, 8, 5]] }), diffusion: { model: 'charged-defect' } },
-      line: /^edgewise: bad recipe: diffusion\.model: must be "intrinsic" for a 3D plan view/ },
   ];
   for (const c of cases) {
     it(c.name, () => {

@@ -211,6 +211,66 @@ export class AdiStepper3d {
     return held ? this.content(c) - before : 0;
   }
 
+  /**
+   * The same step with D varying in space (concentration-dependent diffusion): `nu` holds
+   * ν = D·τ at every node, in the field's layout; a face takes the mean of its two nodes.
+   * No two lines share a matrix, so each is factorised as it is solved: x rows one by one,
+   * y and z lines a row or plane at a time with the factors kept per node. Douglas–Gunn with
+   * non-commuting coefficients is not unconditionally stable; the time loop holds the step
+   * growth and damps ringing as the 2D loop does.
+   */
+  stepVariable(c: Float64Array, nu: Float64Array, scheme: Scheme3d, held: boolean): number {
+    const before = held ? this.content(c) : 0;
+    const dg = scheme === 'douglas-gunn';
+    const beta = dg ? 0.5 : 1;
+    const d = dg ? this.delta : c;
+    const { nx, ny, nz, plane, open } = this;
+    if (this.cpZ === null) {
+      this.cpZ = new Float64Array(plane * nz);
+      this.cpY = new Float64Array(plane);
+    }
+    const cpZ = this.cpZ;
+    const cpY = this.cpY!;
+    for (let k = 0; k < nz; k++) {
+      const surfaceHeld = held && k === 0;
+      if (dg) {
+        this.residualPlaneVariable(c, d, nu, k);
+        if (surfaceHeld) clearHeld(d, open);
+      }
+      for (let j = 0; j < ny; j++) {
+        const base = (k * ny + j) * nx;
+        variableRow(d, nu, base, nx, this.ax, this.cx, beta, surfaceHeld ? open : this.noMask, surfaceHeld ? j * nx : 0, surfaceHeld ? 1 : 0, this.lineCp);
+      }
+      variableAcross(d, nu, k * plane, nx, ny, this.ay, this.cy, beta, cpY, 0, surfaceHeld ? open : this.noMask, surfaceHeld ? 1 : 0);
+      variableZForward(d, nu, k, plane, nz, this.az, this.cz, beta, cpZ, held && k === 0 ? open : this.noMask, held && k === 0 ? 1 : 0);
+    }
+    for (let k = nz - 2; k >= 0; k--) {
+      const o = k * plane;
+      substituteVariable(d, cpZ, o, o + plane, plane);
+      if (dg) addRange(c, d, o + plane, o + 2 * plane);
+    }
+    if (dg) addRange(c, d, 0, plane);
+    return held ? this.content(c) - before : 0;
+  }
+
+  /** Per-node Thomas factors of the z and y solves of stepVariable (allocated at its first call). */
+  private cpZ: Float64Array | null = null;
+  private cpY: Float64Array | null = null;
+  /** A mask of one zero, read with stride 0 where no position is held. */
+  private readonly noMask = new Uint8Array(1);
+
+  /** Plane k of out = (Ax(ν) + Ay(ν) + Az(ν)) c, faces taking the mean ν of their two nodes. */
+  private residualPlaneVariable(c: Float64Array, out: Float64Array, nu: Float64Array, k: number): void {
+    const { nx, ny, nz, plane, ax, cx, ay, cy, az, cz } = this;
+    const zm = k > 0 ? -plane : 0;
+    const zp = k < nz - 1 ? plane : 0;
+    for (let j = 0; j < ny; j++) {
+      const ym = j > 0 ? -nx : 0;
+      const yp = j < ny - 1 ? nx : 0;
+      variableResidualRow(c, out, nu, (k * ny + j) * nx, nx, ax, cx, 0.5 * ay[j], 0.5 * cy[j], 0.5 * az[k], 0.5 * cz[k], ym, yp, zm, zp);
+    }
+  }
+
   /** Factorises I − β·Ak for each axis, and the z factor held at node 0. */
   private prepare(beta: number): void {
     factorAxis(this.ax, this.cx, beta, this.fx, this.lo, this.di, this.up, false);
@@ -454,4 +514,103 @@ function primeKernels3d(): void {
     }
     stepper.bottomPlaneFinite(c);
   }
+}
+
+/** One row of (A(ν) c): x neighbours along the row (ends clamped), y and z at fixed offsets (0 at a wall). */
+function variableResidualRow(c: Float64Array, out: Float64Array, nu: Float64Array, base: number, nx: number, ax: Float64Array, cx: Float64Array,
+                             hym: number, hyp: number, hzm: number, hzp: number, ym: number, yp: number, zm: number, zp: number): void {
+  for (let i = 0; i < nx; i++) {
+    const o = base + i;
+    const c0 = c[o];
+    const n0 = nu[o];
+    const xm = i > 0 ? o - 1 : o;
+    const xp = i < nx - 1 ? o + 1 : o;
+    out[o] = 0.5 * ax[i] * (nu[xm] + n0) * (c[xm] - c0) + 0.5 * cx[i] * (nu[xp] + n0) * (c[xp] - c0) +
+      hym * (nu[o + ym] + n0) * (c[o + ym] - c0) + hyp * (nu[o + yp] + n0) * (c[o + yp] - c0) +
+      hzm * (nu[o + zm] + n0) * (c[o + zm] - c0) + hzp * (nu[o + zp] + n0) * (c[o + zp] - c0);
+  }
+}
+
+/**
+ * One x row solved in place with (I − β·Ax(ν)), factorised as it goes; positions where
+ * mask[maskBase + i·maskStride] is 1 are identity rows (stride 0 with a zero mask: none).
+ */
+function variableRow(d: Float64Array, nu: Float64Array, base: number, nx: number, gPrev: Float64Array, gNext: Float64Array, beta: number,
+                     mask: Uint8Array, maskBase: number, maskStride: number, cp: Float64Array): void {
+  let y = 0;
+  let cpPrev = 0;
+  for (let i = 0; i < nx; i++) {
+    const o = base + i;
+    const free = 1 - mask[maskBase + i * maskStride];
+    const n0 = nu[o];
+    const lo = i > 0 ? -beta * gPrev[i] * 0.5 * (nu[o - 1] + n0) * free : 0;
+    const up = i < nx - 1 ? -beta * gNext[i] * 0.5 * (n0 + nu[o + 1]) * free : 0;
+    const inv = 1 / (1 - lo - up - lo * cpPrev);
+    cpPrev = up * inv;
+    cp[i] = cpPrev;
+    y = (d[o] - lo * y) * inv;
+    d[o] = y;
+  }
+  for (let i = nx - 2; i >= 0; i--) {
+    y = d[base + i] - cp[i] * y;
+    d[base + i] = y;
+  }
+}
+
+/**
+ * The y lines of one plane (base), solved in place with (I − β·Ay(ν)), all lines of a row
+ * at once; `cp` holds the plane's factors. Held positions as in variableRow (mask per node).
+ */
+function variableAcross(d: Float64Array, nu: Float64Array, base: number, nx: number, ny: number, gPrev: Float64Array, gNext: Float64Array,
+                        beta: number, cp: Float64Array, maskBase: number, mask: Uint8Array, maskStride: number): void {
+  for (let j = 0; j < ny; j++) {
+    const o = base + j * nx;
+    const bp = beta * 0.5 * gPrev[j];
+    const bn = beta * 0.5 * gNext[j];
+    const hasPrev = j > 0 ? 1 : 0;
+    const hasNext = j < ny - 1 ? 1 : 0;
+    const prev = hasPrev ? o - nx : o;
+    const next = hasNext ? o + nx : o;
+    const cpRow = j * nx;
+    const cpPrevRow = hasPrev ? cpRow - nx : cpRow;
+    for (let i = 0; i < nx; i++) {
+      const free = 1 - mask[maskBase + (j * nx + i) * maskStride];
+      const n0 = nu[o + i];
+      const lo = -bp * (nu[prev + i] + n0) * free;
+      const up = -bn * (n0 + nu[next + i]) * free;
+      const cpBefore = hasPrev * cp[cpPrevRow + i];
+      const inv = 1 / (1 - lo - up - lo * cpBefore);
+      cp[cpRow + i] = up * inv;
+      d[o + i] = (d[o + i] - lo * hasPrev * d[prev + i]) * inv;
+    }
+  }
+  for (let j = ny - 2; j >= 0; j--) {
+    const o = base + j * nx;
+    for (let i = 0; i < nx; i++) d[o + i] -= cp[j * nx + i] * d[o + nx + i];
+  }
+}
+
+/** Plane k's step of the z forward elimination with (I − β·Az(ν)); its factors kept in cpZ for the back substitution. */
+function variableZForward(d: Float64Array, nu: Float64Array, k: number, plane: number, nz: number, gPrev: Float64Array, gNext: Float64Array,
+                          beta: number, cpZ: Float64Array, mask: Uint8Array, maskStride: number): void {
+  const o = k * plane;
+  const hasPrev = k > 0 ? 1 : 0;
+  const prev = hasPrev ? o - plane : o;
+  const next = k < nz - 1 ? o + plane : o;
+  const bp = beta * 0.5 * gPrev[k];
+  const bn = beta * 0.5 * gNext[k];
+  for (let p = 0; p < plane; p++) {
+    const free = 1 - mask[p * maskStride];
+    const n0 = nu[o + p];
+    const lo = -bp * (nu[prev + p] + n0) * free;
+    const up = -bn * (n0 + nu[next + p]) * free;
+    const inv = 1 / (1 - lo - up - lo * hasPrev * cpZ[prev + p]);
+    cpZ[o + p] = up * inv;
+    d[o + p] = (d[o + p] - lo * hasPrev * d[prev + p]) * inv;
+  }
+}
+
+/** d[o + p] −= cpZ[o + p]·d[next + p] over one plane. */
+function substituteVariable(d: Float64Array, cpZ: Float64Array, o: number, next: number, plane: number): void {
+  for (let p = 0; p < plane; p++) d[o + p] -= cpZ[o + p] * d[next + p];
 }

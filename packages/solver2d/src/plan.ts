@@ -134,12 +134,6 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
   const thermalBudgetUm2: Record<string, number> = {};
   for (const s of species) thermalBudgetUm2[s.name] = steps.reduce((sum, st) => sum + (st.budgetUm2[s.name] ?? 0), 0);
   const profile = profileReach(steps, species, thermalBudgetUm2, background);
-  if (recipe.mask.rectangles) {
-    const nonlinear = species.filter((s) => s.model !== 'intrinsic');
-    if (nonlinear.length > 0) {
-      throw new RecipeError('diffusion.model', `must be "intrinsic" for a 3D plan view (mask.rectangles): the 3D solve takes concentration-independent D only, and ${nonlinear.map((s) => s.name).join(', ')} would take the ${nonlinear[0].model} model; set "diffusion": { "model": "intrinsic" }`);
-    }
-  }
   const { mesh, mask, space } = sizeMesh(recipe, recipe.mask.windows ?? [], profile, limits, warnings);
   return {
     recipe,

@@ -1,27 +1,27 @@
 import erf from '@stdlib/math-base-special-erf';
 import { AdiStepper3d } from './adi3d.ts';
-import { componentBudgets } from './coupled-diffusivity.ts';
+import { componentBudgets, CoupledDiffusivity, DAMPED_STEPS } from './coupled-diffusivity.ts';
+import type { ComponentDiffusivities } from './dopants.ts';
 import { windowMean, type ImplantSpec } from './implant.ts';
 import { keepLayout } from './layouts.ts';
 import { openArea3d, type Mesh3d } from './mesh3d.ts';
-import type { Plan, SpeciesPlan } from './plan.ts';
+import { temperatureAt, type Plan, type SpeciesPlan } from './plan.ts';
 import { checkWork, planClocks, SolverError, StoppedError, type LedgerEntry, type PlannedClock, type SimulateOptions, type Simulation, type StepRecord } from './simulate.ts';
 import type { Space3d } from './space3d.ts';
-import { sourcePeaks } from './step-clock.ts';
+import { sourcePeaks, speedupOf } from './step-clock.ts';
 import { concentrationFromDose, doseFromConcentrationUm, UM_TO_CM } from './units.ts';
 
 /**
  * The time loop of a 3D recipe (mask.rectangles): the same steps, clocks, sources and
  * ledger as the 2D loop (simulate.ts), on the 3D stepper (adi3d.ts), whose second-order
- * scheme is Douglas–Gunn. Every species diffuses with its intrinsic D (the plan refuses the
- * charged-defect model in 3D). Concentrations are x-contiguous [z][y][x] on space.mesh.
+ * scheme is Douglas–Gunn. Charged-defect species take D per node from the coupled
+ * diffusivity of the 2D loop (coupled-diffusivity.ts), which reads the field as nz planes of
+ * nx·ny nodes, with its step-growth hold and its damped steps where the field rings.
+ * Concentrations are x-contiguous [z][y][x] on space.mesh.
  */
 export function simulate3d(plan: Plan, space: Space3d, options: SimulateOptions = {}): Simulation {
   const { species, steps } = plan;
   const { mesh, mask } = space;
-  for (const s of species) {
-    if (s.model !== 'intrinsic') throw new SolverError(`the ${s.name} species has the ${s.model} model, which the 3D solve does not take`);
-  }
   const cells = mesh.nx * mesh.ny * mesh.nz;
   const peaks = sourcePeaks(plan);
   const clocks = planClocks(plan, peaks, finest3d(mesh));
@@ -34,6 +34,10 @@ export function simulate3d(plan: Plan, space: Space3d, options: SimulateOptions 
     entered[s.name] = 0;
   }
   const stepper = keepLayout(new AdiStepper3d(mesh, mask));
+  // The coupled diffusivity sees the field as nz rows of nx·ny nodes (its uniform "rows" are
+  // the z planes where no dopant has arrived).
+  const nonlinear = species.some((s) => s.model === 'charged-defect');
+  const coupled = nonlinear ? keepLayout(new CoupledDiffusivity({ ...plan, mesh: { ...plan.mesh, nx: mesh.nx * mesh.ny, nz: mesh.nz } }, cells)) : null;
   const present: SpeciesPlan[] = [];
   const stepRecords: StepRecord[] = [];
   let done = 0;
@@ -45,24 +49,38 @@ export function simulate3d(plan: Plan, space: Space3d, options: SimulateOptions 
     const held = st.kind === 'predeposition' ? sp : null;
     const planned: PlannedClock = clocks[st.index];
     let issued = 0;
+    let previousDt = 0;
+    let damped = 0;
+    coupled?.restart();
     for (;;) {
-      const timeStep = planned.clock.next(Infinity);
+      const speedup = coupled && issued > 0 ? speedupOf(st, present, coupled.peaks(peaks)) : Infinity;
+      const timeStep = planned.clock.next(speedup);
       if (!timeStep) break;
       issued++;
       if (planned.clock.finished) total -= planned.count - issued;
       const { t0, t1 } = timeStep;
+      const dt = t1 - t0;
+      const midC = temperatureAt(st, 0.5 * (t0 + t1));
       let surface = 0;
       if (held) {
-        const midC = st.startC! + ((st.endC! - st.startC!) * 0.5 * (t0 + t1)) / st.seconds;
         surface = st.surfaceAtSolubility ? (held.solubility(midC) as number) : st.surfaceConcentrationCm3!;
         entered[held.name] += stepper.holdSurface(concentration[held.name], surface);
       }
-      const scheme = timeStep.implicit ? 'split-implicit' : 'douglas-gunn';
+      const budgets: ComponentDiffusivities[] = [];
+      for (const s of present) budgets.push(componentBudgets(st, s, t0, t1));
+      if (coupled && coupled.prepare(concentration, present, budgets, midC, previousDt > 0 ? dt / (2 * previousDt) : 0)) damped = DAMPED_STEPS;
+      const scheme = timeStep.implicit || damped > 0 ? 'split-implicit' : 'douglas-gunn';
+      if (damped > 0) damped--;
       for (let n = 0; n < present.length; n++) {
         const s = present[n];
-        const nu = componentBudgets(st, s, t0, t1);
-        entered[s.name] += stepper.step(concentration[s.name], nu.neutral + nu.single + nu.double, scheme, s === held);
+        const nu = budgets[n];
+        if (coupled && s.model === 'charged-defect') {
+          entered[s.name] += stepper.stepVariable(concentration[s.name], coupled.nodeBudgets(s, nu), scheme, s === held);
+        } else {
+          entered[s.name] += stepper.step(concentration[s.name], nu.neutral + nu.single + nu.double, scheme, s === held);
+        }
       }
+      previousDt = dt;
       done++;
       for (const s of present) {
         if (!stepper.bottomPlaneFinite(concentration[s.name])) {
