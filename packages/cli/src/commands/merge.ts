@@ -5,6 +5,7 @@ import { fileSystemError, InputError, UsageError } from '../errors.ts';
 import { inside, writeAtomic } from '../files.ts';
 import { encodeCsv, parseCsv } from '../sweep/csv.ts';
 import { SWEEP_SCHEMA_ID, type SweepDocument, type SweepRunEntry } from '../sweep/record.ts';
+import { runFolderProblem } from '../sweep/resume.ts';
 import { SHARD_FILE } from '../sweep/shard.ts';
 import { EXIT_RUNS_FAILED } from './sweep.ts';
 
@@ -91,6 +92,11 @@ export function mergeCommand(args: string[]): number {
     }
     if (s.header.join() !== first.header.join()) throw new UsageError(`merge: ${where(s)} has other columns than ${where(first)}`);
   }
+  const counts = [...new Set(shards.map((s) => s.doc.shard!.count))].sort((a, b) => a - b);
+  if (counts.length > 1) {
+    const split = (n: number) => shards.map((s) => s.doc.shard!).filter((sh) => sh.count === n).sort((a, b) => a.index - b.index).map((sh) => `${sh.index}/${n}`).join(', ');
+    throw new UsageError(`merge: the shards are of ${counts.length} different splits (${counts.map(split).join('; ')}): give the shards of one split, all --shard K/N with the same N`);
+  }
   const count = first.doc.shard!.count;
   const byIndex = new Map<number, ShardFiles>();
   for (const s of shards) {
@@ -117,6 +123,21 @@ export function mergeCommand(args: string[]): number {
   const total = first.doc.total;
   if (runs.length !== total || runs.some((r, k) => r.entry.id !== k + 1)) {
     throw new UsageError(`merge: the shards hold ${runs.length} runs, not the ${total} runs 1 to ${total} of the sweep`);
+  }
+
+  // Every run listed as ok must still be there, whole: its folder, recipe, report and fields.
+  const broken: string[] = [];
+  for (const s of shards) {
+    for (const entry of s.doc.runs) {
+      if (entry.status !== 'ok') continue;
+      const folder = inside(s.folder, entry.dir);
+      const { problem } = runFolderProblem(folder, entry.recipeSha256, s.doc.errorSolves);
+      if (problem) broken.push(`run ${entry.id} (${join(s.folder, entry.dir)}): ${problem}`);
+    }
+  }
+  if (broken.length > 0) {
+    throw new InputError(`merge: ${broken.length} run${broken.length === 1 ? ' listed as ok is' : 's listed as ok are'} not whole: ${broken.slice(0, 3).join('; ')}${broken.length > 3 ? '; …' : ''} ` +
+      '(run the shard again with --resume to redo them)');
   }
 
   const doc: SweepDocument = { ...first.doc, shard: null, runs: runs.map((r) => r.entry) };

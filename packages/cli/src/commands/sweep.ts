@@ -16,6 +16,7 @@ import { workerBundle, WorkerPool } from '../sweep/pool.ts';
 import { SWEEP_SCHEMA_ID, writeSweepFiles, type SweepDocument } from '../sweep/record.ts';
 import { finishedRun, removeStaleTemps } from '../sweep/resume.ts';
 import { indexedJobManifest, planSummary, slurmScript, type PlanRequest } from '../sweep/plan.ts';
+import { removeStaleRunFolders, someNames } from '../sweep/stale.ts';
 import { inShard, parseShard, parseShardCount, shardFromEnvironment, sweepStem, type Shard } from '../sweep/shard.ts';
 import type { ErrorSolves } from '../sweep/task.ts';
 
@@ -151,6 +152,7 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
   const folders = new Map(mine.map((r) => [r.id, inside(out, r.dir)]));
   makeFolders(out);
   removeStaleTemps(out, [`${stem}.csv`, `${stem}.json`]);
+  const stale = removeStaleRunFolders(out, new Set(matrix.runs.map((r) => r.dir)), shard);
 
   const rows = new Map<number, RunRow>();
   const toDo: SweepRun[] = [];
@@ -186,6 +188,12 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
   let stopping: 'SIGINT' | 'SIGTERM' | null = null;
   let abandoning = false;
   const warnings: string[] = [];
+  if (stale.removed.length > 0 && !options.quiet) {
+    process.stderr.write(`sweep: removed ${stale.removed.length} run folder${stale.removed.length === 1 ? '' : 's'} of an earlier sweep that this one does not make: ${someNames(stale.removed)}\n`);
+  }
+  if (stale.kept.length > 0) {
+    process.stderr.write(`warning: ${out} holds ${stale.kept.length} run folder${stale.kept.length === 1 ? '' : 's'} that this sweep does not make, with files of other names or leading elsewhere, left as they are: ${someNames(stale.kept)}\n`);
+  }
   const progress = progressReporter(options.quiet ? null : process.stderr, 'sweep');
   await pool.shrink(Math.min(options.jobs, toDo.length));
   const report = () => progress.update(

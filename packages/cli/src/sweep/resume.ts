@@ -115,7 +115,7 @@ export function finishedRun(folder: string, expectedSha256: string, errorSolves:
 }
 
 /** The temporary names files.ts writes before renaming: `<name>.<pid>.<random>.tmp`. */
-const TEMP_NAME = /\.\d+\.[0-9a-z]+\.tmp$/;
+export const TEMP_NAME = /\.\d+\.[0-9a-z]+\.tmp$/;
 
 /**
  * Removes temporary files left by a process that was killed while writing: those in `folder`
