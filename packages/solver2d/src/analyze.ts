@@ -1,4 +1,5 @@
 import { analyze3d, type PlanView, type RectangleReport } from './analyze3d.ts';
+import { electricalReport, type ElectricalReport } from './electrical.ts';
 import { engineeringResults, type ReportResults, type WindowResults } from './engineering.ts';
 import { buildField, type Field } from './field.ts';
 import {
@@ -71,6 +72,8 @@ export interface Report extends ReportResults {
   /** [layers, nz, nx], or [layers, nz, ny, nx] in 3D */
   field: { layers: string[]; shape: [number, number, number] | [number, number, number, number] };
   warnings: string[];
+  /** the electrical rules under reverse bias, when the recipe asks for them (electrical.ts) */
+  electrical?: ElectricalReport;
 }
 
 export interface Analysis {
@@ -198,5 +201,6 @@ export function analyze(sim: Simulation): Analysis {
     field: { layers: field.names, shape: [field.names.length, mesh.nz, mesh.nx] },
     warnings,
   };
+  if (recipe.electrical) report.electrical = electricalReport(mesh, field.layers.net.data, plan.mask.windows, { biasV: recipe.electrical.biasV }, report.warnings);
   return { report, field, grid };
 }

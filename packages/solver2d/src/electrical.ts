@@ -233,3 +233,59 @@ function solveWindow(grid: ElectrostaticGrid, problem: JunctionProblem, ic: numb
   }
   return out;
 }
+
+/** Fields of a window's electrical result that get an error bar, each in its own unit. */
+export const ELECTRICAL_ERROR_KEYS = ['breakdownV', 'breakdownPlaneV'] as const;
+export const ELECTRICAL_LIST_ERROR_KEYS = ['peakFieldVPerCm', 'depletionDepthUm', 'depletionLateralUm', 'areaCapacitanceFPerCm2', 'perimeterCapacitanceFPerCm'] as const;
+
+export interface ElectricalErrors {
+  breakdownV?: number | null;
+  breakdownPlaneV?: number | null;
+  peakFieldVPerCm?: (number | null)[];
+  depletionDepthUm?: (number | null)[];
+  depletionLateralUm?: (number | null)[];
+  areaCapacitanceFPerCm2?: (number | null)[];
+  perimeterCapacitanceFPerCm?: (number | null)[];
+}
+
+export interface ElectricalReport {
+  /** the reverse biases, V, in the recipe's order */
+  biasV: number[];
+  /** impact-ionisation coefficients the breakdown uses */
+  ionisation: string;
+  /** the electrostatic grid (the diffusion mesh thinned and extended below), nodes */
+  mesh: { columns: number; rows: number; smallestSpacingUm: number };
+  /** per window; null where the window has no junction to bias */
+  windows: ((WindowElectrical & { errors?: ElectricalErrors }) | null)[];
+}
+
+function difference(a: number | null, b: number | null): number | null {
+  return a === null || b === null ? null : rounded(Math.abs(a - b), 2);
+}
+
+/**
+ * The electrical results for the report, with error bars from a second solve on a grid twice
+ * as coarse: |f(h) − f(2h)|, the error of f(2h) at first order and a bound on f(h)'s (an abrupt
+ * doping step between nodes makes the scheme first order; measured 5.6, 2.8, 1.4, 0.7 % in a
+ * plane breakdown at h = 0.2 … 0.025 µm).
+ */
+export function electricalReport(mesh: Mesh, net: Float64Array, windows: readonly (readonly [number, number])[], options: ElectricalOptions, warnings: string[]): ElectricalReport {
+  const h = options.minSpacingUm ?? 2.5 * Math.min(finest(mesh.x), finest(mesh.z));
+  const fine = electricalResults(mesh, net, windows, { ...options, minSpacingUm: h });
+  const coarse = electricalResults(mesh, net, windows, { ...options, minSpacingUm: 2 * h });
+  warnings.push(...fine.warnings);
+  const model = options.model ?? VAN_OVERSTRAETEN_DE_MAN;
+  return {
+    biasV: [...options.biasV],
+    ionisation: model.source,
+    mesh: { columns: fine.columns, rows: fine.rows, smallestSpacingUm: rounded(h, 4)! },
+    windows: fine.windows.map((w, k) => {
+      const c = coarse.windows[k];
+      if (w === null || c === null) return w;
+      const errors: ElectricalErrors = {};
+      for (const key of ELECTRICAL_ERROR_KEYS) errors[key] = difference(w[key], c[key]);
+      for (const key of ELECTRICAL_LIST_ERROR_KEYS) errors[key] = w[key].map((v, b) => difference(v, c[key][b]));
+      return { ...w, errors };
+    }),
+  };
+}

@@ -26,7 +26,10 @@ export function coarsenedRecipe(recipe: Recipe, level: number): Recipe {
   if (mesh.edgeSpacingUm !== undefined) mesh.edgeSpacingUm /= f;
   if (mesh.maxSpacingUm !== undefined) mesh.maxSpacingUm /= f;
   const growth = recipe.numerics?.stepGrowth ?? DEFAULT_STEP_GROWTH;
-  return { ...recipe, mesh, numerics: { ...(recipe.numerics ?? {}), stepGrowth: 1 + (growth - 1) / f } };
+  // The electrical results carry error bars of their own (electrical.ts): a coarser solve leaves them out.
+  const { electrical: _electrical, ...rest } = recipe;
+  void _electrical;
+  return { ...rest, mesh, numerics: { ...(recipe.numerics ?? {}), stepGrowth: 1 + (growth - 1) / f } };
 }
 
 function median(v: number[]): number | null {

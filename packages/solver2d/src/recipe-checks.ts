@@ -97,4 +97,11 @@ export function checkRecipe(recipe: Recipe): void {
     if (!introduced.has(name)) throw new RecipeError(`diffusion.species.${name}`, `names a dopant no step introduces (introduced: ${[...introduced].join(', ')})`);
   }
   checkFilmTiming(recipe);
+  if (recipe.electrical) {
+    if (recipe.mask.rectangles !== undefined) throw new RecipeError('electrical', 'is computed on a 2D cross-section (mask.windows), not on a 3D plan view (mask.rectangles): remove one of them');
+    const substrateType = resolveDopant(recipe, recipe.substrate.dopant, 'substrate.dopant').type;
+    if (![...introduced].some((name) => resolveDopant(recipe, name, 'steps').type !== substrateType)) {
+      throw new RecipeError('electrical', `needs a junction to reverse-bias, but every dopant of the recipe is a${substrateType === 'donor' ? ' donor' : 'n acceptor'} like the substrate's: add a dopant of the other type or remove electrical`);
+    }
+  }
 }

@@ -183,6 +183,22 @@ const sweep = strict({
   set: z.record(z.string(), sweepValues, { error: explain('an object of recipe path → values') }).optional(),
 });
 
+/** Reverse biases of the electrical rules: at most this many, each up to this many volts. */
+export const MAX_BIAS_POINTS = 16;
+export const MAX_BIAS_V = 5000;
+const reverseBias = num('V (a reverse bias)', 0, MAX_BIAS_V);
+
+/**
+ * The electrical rules at room temperature (electrical.ts): each window's region under the
+ * reverse biases `biasV`, and the punch-through spacing at `spacingBiasV` (default: the highest).
+ */
+const electrical = strict({
+  biasV: z.array(reverseBias, { error: explain(`a list of reverse biases, each from 0 to ${MAX_BIAS_V} V`) })
+    .min(1, { error: 'must list at least one reverse bias in V' })
+    .max(MAX_BIAS_POINTS, { error: `must list at most ${MAX_BIAS_POINTS} reverse biases` }),
+  spacingBiasV: reverseBias.optional(),
+});
+
 export const recipeSchema = strict({
   schema: z.literal(RECIPE_SCHEMA_ID, { error: explain(`"${RECIPE_SCHEMA_ID}"`) }).optional(),
   title: z.string({ error: explain('text') }).max(500, { error: explain('text of at most 500 characters') }).optional(),
@@ -208,6 +224,7 @@ export const recipeSchema = strict({
   mesh: meshOptions.optional(),
   numerics: numerics.optional(),
   sweep: sweep.optional(),
+  electrical: electrical.optional(),
   steps: z.array(step, { error: explain('a list of steps') })
     .min(1, { error: 'must list at least one step' })
     .max(200, { error: 'must list at most 200 steps' }),

@@ -80,6 +80,36 @@ const rectangleReport = z.strictObject({
     .describe('numerical error of each length named, µm: Richardson extrapolation from coarser solves'),
 });
 
+const perBias = z.array(z.number().nullable());
+const electricalWindow = z.strictObject({
+  biasAgainst: z.enum(['substrate', 'well']).describe('the region the window\'s region is reverse-biased against: the substrate, or the well that contains it'),
+  breakdownV: z.number().nullable().describe('avalanche breakdown of the region (ionisation integral along field lines = 1), V: an estimate'),
+  breakdownPlaneV: z.number().nullable().describe('breakdown of the same vertical profile in 1D below the window centre (the flat bottom alone), V'),
+  breakdownLimitedBy: z.enum(['edge', 'plane']).nullable().describe('"edge" where the curved edge breaks down first'),
+  peakFieldVPerCm: perBias.describe('largest field anywhere, per bias, V/cm'),
+  peakFieldAtUm: z.array(point.nullable()).describe('where it is, [x, z] µm, per bias'),
+  depletionDepthUm: perBias.describe('depth below the window centre where the carriers recover to half the doping, per bias, µm'),
+  depletionLateralUm: perBias.describe('largest reach of the depletion past a mask edge at any depth, per bias, µm from the edge'),
+  areaCapacitanceFPerCm2: perBias.describe('small-signal capacitance per area of the plane junction below the centre, per bias, F/cm²'),
+  perimeterCapacitanceFPerCm: perBias.describe('the rest of the region\'s capacitance per length of mask edge (charge partition), per bias, F/cm'),
+  errors: z.strictObject({
+    breakdownV: z.number().nullable().optional(),
+    breakdownPlaneV: z.number().nullable().optional(),
+    peakFieldVPerCm: perBias.optional(),
+    depletionDepthUm: perBias.optional(),
+    depletionLateralUm: perBias.optional(),
+    areaCapacitanceFPerCm2: perBias.optional(),
+    perimeterCapacitanceFPerCm: perBias.optional(),
+  }).optional().describe('numerical error of each field named, same unit: |f(h) − f(2h)| from a second electrostatic grid twice as coarse'),
+});
+
+const electrical = z.strictObject({
+  biasV: z.array(z.number()).describe('reverse biases, V'),
+  ionisation: z.string().describe('impact-ionisation coefficients of the breakdown estimate'),
+  mesh: z.strictObject({ columns: z.number().int(), rows: z.number().int(), smallestSpacingUm: z.number() }),
+  windows: z.array(electricalWindow.nullable()).describe('per window; null where it has no junction to bias'),
+});
+
 const ledgerEntry = z.strictObject({ enteredCm2: z.number(), inSiliconCm2: z.number(), relativeImbalance: z.number() });
 
 export const reportSchema = z.strictObject({
@@ -119,6 +149,7 @@ export const reportSchema = z.strictObject({
       .describe('[layers, nz, nx], or [layers, nz, ny, nx] in 3D'),
   }),
   warnings: z.array(z.string()),
+  electrical: electrical.optional().describe('the electrical rules at 300 K under reverse bias, when the recipe asks for them'),
 });
 
 // Both directions: a report is valid against the schema, and what the schema accepts is a report.

@@ -2,6 +2,7 @@ import { existsSync, statSync } from 'node:fs';
 import { basename, extname, join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { analyze, coarseReports, parseRecipe, planRecipe, simulate, withErrorBars, type Analysis, type Report } from '@edgewise/solver2d';
+import { electricalTables } from '../electrical-table.ts';
 import { UsageError } from '../errors.ts';
 import { fmtLength, fmtPlusMinus, fmtRatio, fmtSci, table } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits, withLimitHint } from '../limits.ts';
@@ -166,6 +167,6 @@ export function summary({ report }: Analysis, seconds: number, errorSeconds: num
       `(finest ${report.mesh.finestXUm} µm across, ${report.mesh.finestZUm} µm down), ${report.steps.reduce((n, s) => n + s.timeSteps, 0)} time steps, ${seconds.toFixed(2)} s`;
     return `${head}${mesh3d}\n${errors}\n${rectangleTable(report)}\n\ndose per open area: ${doses}\nthermal budget ∫D dt: ${budgets}`;
   }
-  return `${head}${mesh}\n${errors}\n${windowTable(report)}\n\n${resistanceTable(report)}${stacked}${spacing}\n\n` +
+  return `${head}${mesh}\n${errors}\n${windowTable(report)}\n\n${resistanceTable(report)}${stacked}${spacing}${electricalTables(report)}\n\n` +
     `dose per open area: ${doses}\nthermal budget ∫D dt: ${budgets}${mobility}`;
 }

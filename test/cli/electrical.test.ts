@@ -1,0 +1,68 @@
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { reportSchema } from '../../packages/solver2d/src/report-schema.ts';
+import { edgewise, tempDir } from '../support/cli.ts';
+import { rmSync } from 'node:fs';
+
+const dir = tempDir('edgewise-electrical-');
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+/** A small boron base in n-type silicon (demo scenario, invented), coarse enough to run in seconds. */
+function recipe(electrical: unknown, substrateDopant = 'P'): Record<string, unknown> {
+  return {
+    title: 'small base with electrical rules (demo scenario)',
+    substrate: { dopant: substrateDopant, concentrationCm3: 1e16 },
+    crossSection: { widthUm: 12 },
+    mask: { windows: [[4, 8]] },
+    mesh: { refine: 0.5 },
+    steps: [
+      { kind: 'predeposition', dopant: 'B', surfaceConcentrationCm3: 1e19, temperatureC: 1000, minutes: 20 },
+      { kind: 'drive-in', temperatureC: 1100, minutes: 20 },
+    ],
+    electrical,
+  };
+}
+
+describe('electrical: bad input is one line, exit 2, nothing written', () => {
+  const cases: [string, Record<string, unknown>, string][] = [
+    ['a negative bias', recipe({ biasV: [5, -1] }), 'electrical.biasV[1]: must be a number from 0 to 5000 V (a reverse bias) (got -1)'],
+    ['too long a bias list', recipe({ biasV: Array.from({ length: 17 }, (_, k) => k) }), 'electrical.biasV: must list at most 16 reverse biases'],
+    ['a recipe with no junction', recipe({ biasV: [5] }, 'B'),
+      'electrical: needs a junction to reverse-bias, but every dopant of the recipe is an acceptor like the substrate\'s: add a dopant of the other type or remove electrical'],
+  ];
+  cases.forEach(([name, content, line], k) => {
+    it(name, () => {
+      const path = join(dir, `bad-${k}.json`);
+      writeFileSync(path, JSON.stringify(content));
+      const out = join(dir, `bad-out-${k}`);
+      const r = edgewise(['run', path, '--out', out, '--quiet']);
+      expect(r.code, r.stderr).toBe(2);
+      expect(r.stderr).toBe(`edgewise: bad recipe: ${line}\n`);
+      expect(existsSync(out)).toBe(false);
+    });
+  });
+});
+
+describe('electrical: a run reports and prints the electrical rules', () => {
+  it('writes report.electrical valid against the schema, and prints the breakdown and per-bias tables', () => {
+    const path = join(dir, 'base.json');
+    writeFileSync(path, JSON.stringify(recipe({ biasV: [0, 10] })));
+    const out = join(dir, 'base-out');
+    const r = edgewise(['run', path, '--out', out, '--error-solves', '0']);
+    expect(r.code, r.stderr).toBe(0);
+    const report = reportSchema.parse(JSON.parse(readFileSync(join(out, 'report.json'), 'utf8')));
+    const e = report.electrical!;
+    expect(e.biasV).toEqual([0, 10]);
+    const w = e.windows[0]!;
+    expect(w.biasAgainst).toBe('substrate');
+    // Common practice (no source): depletion widens and capacitance falls with reverse bias; the
+    // curved edge breaks down before the flat bottom.
+    expect(w.depletionDepthUm[1]!).toBeGreaterThan(w.depletionDepthUm[0]!);
+    expect(w.areaCapacitanceFPerCm2[1]!).toBeLessThan(w.areaCapacitanceFPerCm2[0]!);
+    expect(w.breakdownV!).toBeLessThan(w.breakdownPlaneV!);
+    expect(w.errors?.breakdownV).not.toBeUndefined();
+    expect(r.stdout).toMatch(/window +against +breakdown V +plane V +limited by/);
+    expect(r.stdout).toMatch(/bias V +peak field V\/cm/);
+  });
+});
