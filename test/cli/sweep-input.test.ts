@@ -76,7 +76,11 @@ describe('edgewise sweep: parameters from flags and from the recipe', () => {
     expect(index.runs.map((run: { values: Record<string, number> }) => Object.values(run.values))).toEqual([[1, 5, 1], [1, 10, 1], [2, 5, 1], [2, 10, 1]]);
     expect(readFileSync(join(out, 'sweep.csv'), 'utf8').split('\n')[0]).toBe(
       'id,windowWidthUm,steps[1].minutes,dopants.Q.D0Cm2PerS,junctionDepthUm,junctionDepthErrorUm,lateralLeftUm,lateralLeftErrorUm,' +
-      'lateralRightUm,lateralRightErrorUm,lateralToVerticalRatio,surfaceConcentrationCm3,status,error');
+      'lateralRightUm,lateralRightErrorUm,lateralReachLeftUm,lateralReachLeftErrorUm,lateralReachDepthLeftUm,lateralReachDepthLeftErrorUm,' +
+      'lateralReachRightUm,lateralReachRightErrorUm,lateralReachDepthRightUm,lateralReachDepthRightErrorUm,lateralToVerticalRatio,' +
+      'surfaceConcentrationCm3,surfaceConcentrationErrorCm3,sheetResistanceOhmSq,sheetResistanceErrorOhmSq,' +
+      'lineResistanceOhmPerUm,lineResistanceErrorOhmPerUm,effectiveWidthUm,effectiveWidthErrorUm,drawnPlusLateralUm,drawnPlusLateralErrorUm,' +
+      'curvatureRadiusLeftUm,curvatureRadiusLeftErrorUm,curvatureRadiusRightUm,curvatureRadiusRightErrorUm,status,error');
     const third = JSON.parse(readFileSync(join(out, index.runs[2].dir, 'recipe.json'), 'utf8'));
     expect(third.mask.windows).toEqual([[11, 13]]);
     expect(third.steps[1].minutes).toBe(5);

@@ -2,7 +2,9 @@ import type { Report } from '@edgewise/solver2d';
 
 /**
  * contour.svg: the cross-section drawn to scale (one µm is the same length across and down),
- * with the mask on the surface, the junction contours, and µm axes. Depth runs downwards.
+ * with the mask on the surface, the junction contours, the lateral encroachment at each mask
+ * edge (and the lateral reach at its depth, where the junction reaches further below the
+ * surface), the gaps across stripes, and µm axes. Depth runs downwards.
  */
 
 /** Longest side of the drawing of the cross-section, px. */
@@ -77,6 +79,28 @@ export function contourSvg(report: Report): string {
     }
   }
 
+  // At each mask edge, the lateral encroachment as a dimension just below the surface, and the
+  // lateral reach at its depth where the junction reaches further there (an implant's bulge).
+  const dimension = (kind: 'lateral' | 'reach', edge: number, to: number, z: number, label: string, below: boolean) => {
+    const a = X(edge);
+    const b = X(to);
+    const y = Z(z) + (below ? 4 : 0);
+    out.push(`<line class="${kind}" x1="${px(a)}" y1="${px(y)}" x2="${px(b)}" y2="${px(y)}" stroke="#6b3fa0" stroke-width="1"/>`);
+    for (const x of [a, b]) out.push(`<line class="${kind}-tick" x1="${px(x)}" y1="${px(y - 3)}" x2="${px(x)}" y2="${px(y + 3)}" stroke="#6b3fa0" stroke-width="1"/>`);
+    out.push(`<text class="${kind}-label" x="${px(0.5 * (a + b))}" y="${px(y - 5)}" text-anchor="middle" font-size="9" fill="#6b3fa0" stroke="#f4f1ea" stroke-width="3" paint-order="stroke">${escapeXml(label)}</text>`);
+  };
+  for (const win of report.windows) {
+    for (const [edge, dir, lateral, reach, depth] of [
+      [win.x0Um, -1, win.lateralLeftUm, win.lateralReachLeftUm, win.lateralReachDepthLeftUm],
+      [win.x1Um, 1, win.lateralRightUm, win.lateralReachRightUm, win.lateralReachDepthRightUm],
+    ] as const) {
+      if (lateral !== null) dimension('lateral', edge, edge + dir * lateral, 0, `lateral ${lateral.toFixed(3)} µm`, true);
+      if (reach !== null && depth !== null && (lateral === null || depth > 0)) {
+        dimension('reach', edge, edge + dir * reach, depth, `reach ${reach.toFixed(3)} µm at ${depth.toFixed(3)} µm`, false);
+      }
+    }
+  }
+
   // Junction-to-junction gap across each stripe, as a dimension line just below the surface.
   for (const pair of report.spacings ?? []) {
     const left = report.windows[pair.left];
@@ -84,7 +108,7 @@ export function contourSvg(report: Report): string {
     if (pair.merged || !pair.surfaceGapUm || left.lateralRightUm === null || right.lateralLeftUm === null) continue;
     const a = X(left.x1Um + left.lateralRightUm);
     const b = X(right.x0Um - right.lateralLeftUm);
-    const y = Z(0) + 10;
+    const y = Z(0) + 16;
     out.push(`<line class="gap" x1="${px(a)}" y1="${px(y)}" x2="${px(b)}" y2="${px(y)}" stroke="#1f5fa8" stroke-width="1"/>`);
     for (const x of [a, b]) out.push(`<line x1="${px(x)}" y1="${px(y - 4)}" x2="${px(x)}" y2="${px(y + 4)}" stroke="#1f5fa8" stroke-width="1"/>`);
     out.push(`<text x="${px(0.5 * (a + b))}" y="${px(y + 14)}" text-anchor="middle" fill="#1f5fa8" stroke="#f4f1ea" stroke-width="3" paint-order="stroke">${pair.surfaceGapUm.toFixed(3)} µm</text>`);
@@ -102,7 +126,7 @@ export function contourSvg(report: Report): string {
   }
   out.push(`<text x="${px(X(widthUm / 2))}" y="${px(height - 6)}" text-anchor="middle">x (µm)</text>`);
   out.push(`<text transform="translate(14 ${px(Z(depthUm / 2))}) rotate(-90)" text-anchor="middle">depth z (µm)</text>`);
-  const heading = `${report.title ? `${report.title} — ` : ''}junction (N_D = N_A) in red, mask in black, junction gaps in blue; to scale`;
+  const heading = `${report.title ? `${report.title} — ` : ''}junction (N_D = N_A) in red, mask in black, lateral encroachment and reach below the surface in purple, junction gaps in blue; to scale`;
   out.push(`<text x="${px(MARGIN.left)}" y="16" font-size="12">${escapeXml(heading)}</text>`);
   out.push('</svg>');
   return `${out.join('\n')}\n`;

@@ -88,7 +88,7 @@ export function withErrorBars(reports: Report[], recipe: Recipe): Report {
   const p = median(orders);
   const errorEstimate: ErrorEstimateSummary = {
     method: reports.length >= 3
-      ? 'Richardson extrapolation from meshes h, 2h, 4h (time steps likewise); order measured per quantity, at most 2; safety factor 1.25, or 3 where the order could not be measured'
+      ? 'Richardson extrapolation from meshes h, 2h, 4h (time steps likewise); order measured per quantity: within 0.2 of 2, used (at most 2) with safety factor 1.25; below, used (at least 0.5) with safety factor 3; above 2.2 or not monotone, the cautious bound max(|f1 − f2|, |f2 − f3|/2)'
       : 'Richardson extrapolation from meshes h and 2h (time steps likewise), formal order 2, safety factor 3',
     meshes: reports.map((r, level) => ({
       refine: coarsenedRecipe(recipe, level).mesh!.refine!,

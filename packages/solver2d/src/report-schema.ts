@@ -48,7 +48,7 @@ const windowReport = z.strictObject({
     mobilityFit: z.string().describe('mobility fit of the layer\'s majority carriers'),
     errors: z.strictObject({ sheetResistanceOhmSq: z.number().nullable().optional() }).optional(),
   })).optional().describe('each layer below the window centre that a junction bounds, from the surface down'),
-  errors: errorBars(WINDOW_ERROR_KEYS, 'µm, Ω/sq, Ω/µm').optional(),
+  errors: errorBars(WINDOW_ERROR_KEYS, 'µm, Ω/sq, Ω/µm, cm^-3').optional(),
 });
 
 const pairSpacing = z.strictObject({

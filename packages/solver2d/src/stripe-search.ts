@@ -139,7 +139,8 @@ export function searchStripe(recipe: Recipe, options: StripeSearchOptions): Stri
 }
 
 export interface StripeSearchWithError extends StripeSearch {
-  /** numerical error of stripeUm from the same search on coarser meshes, µm; null with no coarser search */
+  /** numerical error of stripeUm, µm: Richardson's from the same search on coarser meshes plus the
+   *  width of the final bisection bracket; null with no coarser search */
   stripeErrorUm: number | null;
   /** the answers on the meshes h, 2h (and 4h) */
   stripesByMeshUm: number[];
@@ -159,6 +160,10 @@ export function searchStripeWithError(recipe: Recipe, options: StripeSearchOptio
     answers.push(coarse.stripeUm);
   }
   const [f1, f2, f3] = answers;
-  const stripeErrorUm = f2 === undefined ? null : Number(richardsonError(f1, f2, f3).toPrecision(3));
+  // The answer is the upper end of the final bracket: the stripe on this mesh that just meets
+  // lies anywhere in it, so its width adds to the mesh error (and keeps the bar above 0 where
+  // the coarser searches land on the same stripe).
+  const bracketUm = fine.bracketUm[1] - fine.bracketUm[0];
+  const stripeErrorUm = f2 === undefined ? null : Number((richardsonError(f1, f2, f3) + bracketUm).toPrecision(3));
   return { ...fine, stripeErrorUm, stripesByMeshUm: answers };
 }

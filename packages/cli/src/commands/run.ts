@@ -70,10 +70,12 @@ export function runCommand(args: string[]): number {
 
 export function windowTable(report: Report): string {
   return table(
-    ['window', 'x0 µm', 'x1 µm', 'xj µm', 'lateral L µm', 'lateral R µm', 'lateral/xj', 'surface cm^-3'],
+    ['window', 'x0 µm', 'x1 µm', 'xj µm', 'lateral L µm', 'lateral R µm', 'reach L µm', 'at z µm', 'reach R µm', 'at z µm', 'lateral/xj', 'surface cm^-3'],
     report.windows.map((w, k) => [
       String(k + 1), fmtLength(w.x0Um, 2), fmtLength(w.x1Um, 2), fmtPlusMinus(w.junctionDepthUm, w.errors?.junctionDepthUm),
       fmtPlusMinus(w.lateralLeftUm, w.errors?.lateralLeftUm), fmtPlusMinus(w.lateralRightUm, w.errors?.lateralRightUm),
+      fmtPlusMinus(w.lateralReachLeftUm, w.errors?.lateralReachLeftUm), fmtDepth(w.lateralReachDepthLeftUm, w.errors?.lateralReachDepthLeftUm),
+      fmtPlusMinus(w.lateralReachRightUm, w.errors?.lateralReachRightUm), fmtDepth(w.lateralReachDepthRightUm, w.errors?.lateralReachDepthRightUm),
       fmtRatio(w.lateralToVerticalRatio), fmtSci(w.surfaceConcentrationCm3),
     ]),
   );
@@ -93,6 +95,35 @@ export function rectangleTable(report: Report): string {
       corner(r, 'bottomLeft'), corner(r, 'bottomRight'), corner(r, 'topLeft'), corner(r, 'topRight'),
     ]),
   );
+}
+
+/** A depth to the nm, with its error bar where that is at least half a nm (the report has the rest). */
+function fmtDepth(v: number | null, e: number | null | undefined): string {
+  return e !== null && e !== undefined && e >= 5e-4 ? fmtPlusMinus(v, e) : fmtLength(v);
+}
+
+/**
+ * Where a junction bulges below the surface (its reach beyond the surface lateral by more
+ * than the error bars), a line saying so, since W+2·lateral then uses the reach; '' otherwise.
+ */
+export function reachNote(report: Report): string {
+  const notes: string[] = [];
+  report.windows.forEach((w, k) => {
+    const sides: string[] = [];
+    for (const [lateral, reach, depth, eL, eR] of [
+      [w.lateralLeftUm, w.lateralReachLeftUm, w.lateralReachDepthLeftUm, w.errors?.lateralLeftUm, w.errors?.lateralReachLeftUm],
+      [w.lateralRightUm, w.lateralReachRightUm, w.lateralReachDepthRightUm, w.errors?.lateralRightUm, w.errors?.lateralReachRightUm],
+    ] as const) {
+      if (lateral === null || reach === null || depth === null) continue;
+      if (reach - lateral > Math.max(1e-4, (eL ?? 0) + (eR ?? 0))) sides.push(`${reach.toFixed(3)} µm at ${depth.toFixed(3)} µm deep (surface ${lateral.toFixed(3)})`);
+      else sides.push('');
+    }
+    if (sides.every((t) => t === '')) return;
+    const both = sides.length === 2 && sides[0] === sides[1];
+    notes.push(both ? `window ${k + 1} ${sides[0]} at both edges`
+      : `window ${k + 1} ${sides.map((t, n) => (t ? `${n === 0 ? 'left' : 'right'} ${t}` : '')).filter(Boolean).join(', ')}`);
+  });
+  return notes.length === 0 ? '' : `the junction reaches further below the surface than at it: ${notes.join('; ')}; W+2·lateral uses the reach`;
 }
 
 /** A resistance to 4 significant figures, with its error bar to 1 where there is one. */
@@ -141,9 +172,10 @@ export function spacingTable(report: Report): string {
 function orderNote(order: number | null): string {
   if (order === null) return ', formal order 2';
   const shown = order.toFixed(2);
-  return order >= 0.5
-    ? `, observed order ${shown}`
-    : `, observed order ${shown} (median): the coarser meshes are not yet converging, so bars use order 2 and safety factor 3 where the order is not credible`;
+  if (Math.abs(order - 2) <= 0.2) return `, observed order ${shown}`;
+  return order < 2
+    ? `, observed order ${shown} (median): the coarser meshes converge more slowly than the scheme's order 2, so bars use safety factor 3 where a quantity's order is below 1.8`
+    : `, observed order ${shown} (median): above the scheme's order 2, so bars use the cautious bound where a quantity's order is above 2.2`;
 }
 
 export function summary({ report }: Analysis, seconds: number, errorSeconds: number | null = null): string {
@@ -167,6 +199,7 @@ export function summary({ report }: Analysis, seconds: number, errorSeconds: num
       `(finest ${report.mesh.finestXUm} µm across, ${report.mesh.finestZUm} µm down), ${report.steps.reduce((n, s) => n + s.timeSteps, 0)} time steps, ${seconds.toFixed(2)} s`;
     return `${head}${mesh3d}\n${errors}\n${rectangleTable(report)}\n\ndose per open area: ${doses}\nthermal budget ∫D dt: ${budgets}`;
   }
-  return `${head}${mesh}\n${errors}\n${windowTable(report)}\n\n${resistanceTable(report)}${stacked}${spacing}${electricalTables(report)}\n\n` +
+  const reach = reachNote(report);
+  return `${head}${mesh}\n${errors}\n${windowTable(report)}\n${reach ? `${reach}\n` : ''}\n${resistanceTable(report)}${stacked}${spacing}${electricalTables(report)}\n\n` +
     `dose per open area: ${doses}\nthermal budget ∫D dt: ${budgets}${mobility}`;
 }

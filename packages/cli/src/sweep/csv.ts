@@ -1,25 +1,35 @@
 import type { RectangleReport, Report, WindowReport } from '@edgewise/solver2d';
 
 /**
- * sweep.csv: one row per run — id, the swept values, then per window the junction depth,
- * lateral encroachment at each edge (each with its numerical error bar, empty without error
- * solves), their ratio and the surface concentration, then the run's status and error.
+ * sweep.csv: one row per run — id, the swept values, then per window every number of the
+ * report's window (junction depth, lateral encroachment and lateral reach with its depth at
+ * each edge, lateral/xj, surface concentration, sheet and line resistance, effective width,
+ * drawn width plus lateral, edge radii), each measured one followed by its numerical error bar
+ * (empty without error solves), then the run's status and error.
  * Quoting follows RFC 4180 (fields with a comma, quote or line break are quoted, quotes doubled).
  */
-type Measured = 'junctionDepthUm' | 'lateralLeftUm' | 'lateralRightUm';
-type Plain = 'lateralToVerticalRatio' | 'surfaceConcentrationCm3';
+type Measured =
+  | 'junctionDepthUm' | 'lateralLeftUm' | 'lateralRightUm'
+  | 'lateralReachLeftUm' | 'lateralReachDepthLeftUm' | 'lateralReachRightUm' | 'lateralReachDepthRightUm'
+  | 'surfaceConcentrationCm3' | 'sheetResistanceOhmSq' | 'lineResistanceOhmPerUm' | 'effectiveWidthUm'
+  | 'drawnPlusLateralUm' | 'curvatureRadiusLeftUm' | 'curvatureRadiusRightUm';
+type Plain = 'lateralToVerticalRatio';
+
+/** The report fields, in column order; each measured one gets an error column after it. */
+const FIELDS: readonly (Measured | Plain)[] = [
+  'junctionDepthUm', 'lateralLeftUm', 'lateralRightUm',
+  'lateralReachLeftUm', 'lateralReachDepthLeftUm', 'lateralReachRightUm', 'lateralReachDepthRightUm',
+  'lateralToVerticalRatio', 'surfaceConcentrationCm3',
+  'sheetResistanceOhmSq', 'lineResistanceOhmPerUm', 'effectiveWidthUm', 'drawnPlusLateralUm',
+  'curvatureRadiusLeftUm', 'curvatureRadiusRightUm',
+];
+const PLAIN: ReadonlySet<string> = new Set<Plain>(['lateralToVerticalRatio']);
+/** The unit suffixes of the field names; an error column puts "Error" before the unit (junctionDepthErrorUm, sheetResistanceErrorOhmSq). */
+const UNIT = /(Um|OhmSq|OhmPerUm|Cm3)$/;
 
 /** Each column: its name and the report field it holds (an error bar when `error` is set). */
-const COLUMNS: readonly { name: string; field: Measured | Plain; error?: true }[] = [
-  { name: 'junctionDepthUm', field: 'junctionDepthUm' },
-  { name: 'junctionDepthErrorUm', field: 'junctionDepthUm', error: true },
-  { name: 'lateralLeftUm', field: 'lateralLeftUm' },
-  { name: 'lateralLeftErrorUm', field: 'lateralLeftUm', error: true },
-  { name: 'lateralRightUm', field: 'lateralRightUm' },
-  { name: 'lateralRightErrorUm', field: 'lateralRightUm', error: true },
-  { name: 'lateralToVerticalRatio', field: 'lateralToVerticalRatio' },
-  { name: 'surfaceConcentrationCm3', field: 'surfaceConcentrationCm3' },
-];
+const COLUMNS: readonly { name: string; field: Measured | Plain; error?: true }[] = FIELDS.flatMap((field) =>
+  PLAIN.has(field) ? [{ name: field, field }] : [{ name: field, field }, { name: field.replace(UNIT, 'Error$1'), field, error: true as const }]);
 
 export const WINDOW_COLUMNS = COLUMNS.map((c) => c.name);
 
