@@ -2,7 +2,7 @@ import type { Report } from '../../packages/solver2d/src/index.ts';
 import { describe, expect, it } from 'vitest';
 import { parameterText } from '../../packages/viewer/src/caption.ts';
 import { reachDimensions } from '../../packages/viewer/src/dimensions.ts';
-import { EDGE_DEPTH_XJ, EDGE_HALF_WIDTH_XJ, edgePanes, maskEdges, tileFrames } from '../../packages/viewer/src/edge-view.ts';
+import { deepestJunctionUm, EDGE_DEPTH_XJ, EDGE_HALF_WIDTH_XJ, edgePanes, maskEdges, tileFrames } from '../../packages/viewer/src/edge-view.ts';
 
 /** The parts of a report the edge view reads (the rest of the contract does not matter here). */
 function report(windows: [number, number, number | null][], extra: Record<string, unknown>[] = []): Report {
@@ -40,6 +40,14 @@ describe('edge view', () => {
     expect(tileFrames([narrow], true).edges).toBe(false);
     // No junction to size the panes by: the whole width.
     expect(tileFrames([{ ...wide, report: report([[8, 16, null]]) }], true).edges).toBe(false);
+  });
+});
+
+describe('edge view of a buried layer', () => {
+  it('is sized by the lower junction and the reach depth, not only the upper junction at the centre', () => {
+    // A buried implant: junctions at 0.13 and 0.67 µm, reaching 0.18 µm beyond the edge at 0.4 µm.
+    const r = report([[3, 5, 0.13]], [{ junctionDepthsUm: [0.13, 0.67], lateralReachLeftUm: 0.18, lateralReachDepthLeftUm: 0.4 }]);
+    expect(deepestJunctionUm([{ report: r, widthUm: 8, depthUm: 0.84 }])).toBe(0.67);
   });
 });
 

@@ -62,11 +62,21 @@ function line(cls: string, text: string, um?: number | null): HTMLElement {
   return s;
 }
 
+/** The larger error bar of the two edges' reach (or surface lateral), as " (± e)". */
+function reachError(errors: Record<string, number>, reach: boolean): string {
+  const keys = reach ? ['lateralReachLeftUm', 'lateralReachRightUm'] : ['lateralLeftUm', 'lateralRightUm'];
+  const bars = keys.map((k) => errors[k]).filter((v): v is number => typeof v === 'number');
+  if (bars.length === 0) return '';
+  const e = Math.max(...bars);
+  return ` (± ${e >= 0.001 || e === 0 ? e.toFixed(3) : e.toPrecision(1)})`;
+}
+
 /** One window's lines: width, junction depth, the reach at each edge (else the surface lateral). */
 function windowRows(report: Report, k: number, several: boolean, widthInHead: boolean): { rows: HTMLElement[]; tip: string } {
   const w = report.windows[k] as Report['windows'][number] & ReachFields;
   const errors = (w as { errors?: Record<string, number> }).errors ?? {};
-  const pm = (key: string) => (typeof errors[key] === 'number' ? ` ± ${errors[key].toFixed(3)}` : '');
+  // An error bar under a thousandth keeps one significant figure rather than showing ± 0.000.
+  const pm = (key: string) => (typeof errors[key] === 'number' ? ` ± ${errors[key] >= 0.001 || errors[key] === 0 ? errors[key].toFixed(3) : errors[key].toPrecision(1)}` : '');
   const width = w.x1Um - w.x0Um;
   const reach = typeof w.lateralReachLeftUm === 'number' || typeof w.lateralReachRightUm === 'number';
   const left = reach ? w.lateralReachLeftUm : w.lateralLeftUm;
@@ -76,7 +86,7 @@ function windowRows(report: Report, k: number, several: boolean, widthInHead: bo
   const rows = [
     ...(widthInHead ? [] : [line('window', `${label} ${fmtUm(width, 2)} µm`, width)]),
     line('xj', `xj ${fmtUm(w.junctionDepthUm)}${pm('junctionDepthUm')} µm`, w.junctionDepthUm),
-    line('lateral', `${name} ${fmtUm(left)} | ${fmtUm(right)} µm`, left),
+    line('lateral', `${name} ${fmtUm(left)} | ${fmtUm(right)}${reachError(errors, reach)} µm`, left),
   ];
   const tip = `${label} ${fmtUm(width, 3)} µm (${fmtUm(w.x0Um)}–${fmtUm(w.x1Um)} µm)\njunction depth ${fmtUm(w.junctionDepthUm)}${pm('junctionDepthUm')} µm\n` +
     `${reach ? 'lateral reach at any depth' : 'lateral encroachment at the surface'}, left | right: ${fmtUm(left)} | ${fmtUm(right)} µm` +

@@ -44,10 +44,28 @@ export function maskEdges(report: Report, widthUm: number): number[] {
   return out.sort((a, b) => a - b);
 }
 
-/** Deepest junction under any window of any section, µm; null when none has one. */
+type Extents = {
+  junctionDepthsUm?: number[];
+  lateralReachLeftUm?: number | null;
+  lateralReachRightUm?: number | null;
+  lateralReachDepthLeftUm?: number | null;
+  lateralReachDepthRightUm?: number | null;
+};
+
+/**
+ * The size the edge view is measured in, µm: the deepest junction under any window of any
+ * section (a buried layer's lower junction too), or the furthest reach beyond an edge or its
+ * depth if larger; null when no window has a junction.
+ */
 export function deepestJunctionUm(sections: readonly Section[]): number | null {
   let deepest = 0;
-  for (const s of sections) for (const w of s.report.windows) if (typeof w.junctionDepthUm === 'number') deepest = Math.max(deepest, w.junctionDepthUm);
+  for (const s of sections) {
+    for (const w of s.report.windows) {
+      const e = w as typeof w & Extents;
+      const lengths = [w.junctionDepthUm, ...(e.junctionDepthsUm ?? []), e.lateralReachLeftUm, e.lateralReachRightUm, e.lateralReachDepthLeftUm, e.lateralReachDepthRightUm];
+      for (const v of lengths) if (typeof v === 'number' && Number.isFinite(v)) deepest = Math.max(deepest, v);
+    }
+  }
   return deepest > 0 ? deepest : null;
 }
 
