@@ -155,7 +155,7 @@ describe('output folders that cannot be written: one line naming the path, the c
     writeFileSync(file, 'not a folder');
     const r = edgewise(['run', recipe, '--out', join(file, 'out'), '--error-solves', '0', '--quiet']);
     expect(r.code, r.stderr).toBe(2);
-    expect(r.stderr).toBe(`edgewise: ${file}/out/field.npy: cannot be written: ${file} is a file, not a folder; move that file away, or choose another folder with --out\n`);
+    expect(r.stderr).toBe(`edgewise: ${file}/out: cannot be written: ${file} is a file, not a folder; move that file away, or choose another folder with --out\n`);
     expect(readdirSync(dir).sort()).toEqual(['plain-file', 'recipe.json']);
   });
 
@@ -188,7 +188,7 @@ describe('output folders that cannot be written: one line naming the path, the c
     const recipe = recipeIn(base());
     const r = edgewise(['run', recipe, '--out', '/proc/edgewise-test-out', '--error-solves', '0', '--quiet']);
     expect(r.code, r.stderr).toBe(2);
-    expect(r.stderr).toBe('edgewise: /proc/edgewise-test-out/field.npy: cannot be written: a folder on the way cannot be made there; choose another folder with --out\n');
+    expect(r.stderr).toBe('edgewise: /proc/edgewise-test-out: cannot be written: a folder on the way cannot be made there; choose another folder with --out\n');
   });
 
   it('run: a recipe path that goes through a regular file (exit 2)', () => {

@@ -1,6 +1,11 @@
-import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { get as httpGet } from 'node:http';
+import { createServer, type AddressInfo } from 'node:net';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { temporaryName } from '../../packages/cli/src/files.ts';
+import { startViewServer } from '../../packages/cli/src/view-server.ts';
 import { edgewise, tempDir } from '../support/cli.ts';
 
 /**
@@ -160,11 +165,11 @@ describe('hostile input: one line, exit 2, nothing written', () => {
     });
   });
 
-  it.skipIf(!existsSync('/dev/zero'))('an endless source (/dev/zero): stops reading at the size limit', () => {
+  it.skipIf(!existsSync('/dev/zero'))('an endless source (/dev/zero): refused before it is read', () => {
     const out = join(dir, 'out-zero');
     const r = edgewise(['run', '/dev/zero', '--out', out]);
     expect(r.code).toBe(2);
-    expect(r.stderr).toBe('edgewise: /dev/zero: gives more than 1048576 bytes, larger than a recipe can be\n');
+    expect(r.stderr).toBe('edgewise: /dev/zero: is a device, not a regular file; save the recipe to a file and give that\n');
     expect(existsSync(out)).toBe(false);
   });
 
@@ -264,5 +269,163 @@ describe('edge-of-range recipes that once failed inside the planner: planned, or
       expect([0, 2], r.stderr).toContain(r.code);
       if (r.code === 2) expect(r.stderr.trim().split('\n')).toHaveLength(1);
     });
+  });
+});
+
+/**
+ * Hostile input to every command, second round: each case is a command line (with what it
+ * needs made first), its exit code and the one line it must answer with: on stderr after
+ * "edgewise: " for a refusal, on stdout for a run that goes through.
+ */
+interface CommandCase {
+  name: string;
+  /** the command line after `edgewise`; `at` is this case's own folder */
+  args: (at: string) => string[];
+  setup?: (at: string) => void | Promise<void>;
+  code: number;
+  line: (at: string) => string;
+  check?: (at: string, r: ReturnType<typeof edgewise>) => void;
+}
+
+const recipeAt = (at: string, text = TEXT) => {
+  writeFileSync(join(at, 'recipe.json'), text);
+  return join(at, 'recipe.json');
+};
+
+/** A process id that no process has now: one that has just exited. */
+function deadPid(): number {
+  const pid = spawnSync('true').pid;
+  if (!pid) throw new Error('test set-up: no process could be started');
+  return pid;
+}
+
+/** An arsenic implant annealed: the stepper leaves round-off negatives below the profile (invented recipe). */
+const ARSENIC = '{"title":"arsenic implant anneal (invented)","substrate":{"dopant":"B","concentrationCm3":1e15},' +
+  '"crossSection":{"widthUm":6},"mask":{"windows":[[2,4]]},"steps":[' +
+  '{"kind":"implant","dopant":"As","doseCm2":5e15,"projectedRangeUm":0.05,"straggleUm":0.02},{"kind":"anneal","temperatureC":1000,"minutes":30}]}';
+
+/** The smallest value of the species layers of a field.npy (every layer after net doping). */
+function smallestSpeciesValue(path: string): number {
+  const bytes = readFileSync(path);
+  const headerLength = bytes.readUInt16LE(8);
+  const header = bytes.subarray(10, 10 + headerLength).toString('latin1');
+  const [, nz, nx] = /'shape': \((\d+), (\d+), (\d+)\)/.exec(header)!.slice(1).map(Number);
+  const values = new Float64Array(bytes.buffer.slice(bytes.byteOffset + 10 + headerLength, bytes.byteOffset + bytes.length));
+  let smallest = Infinity;
+  for (let k = nz * nx; k < values.length; k++) smallest = Math.min(smallest, values[k]);
+  return smallest;
+}
+
+let busyPort = 0;
+const ESCAPED_TITLE = 'hostile \\u001b[2J\\u001b]0;owned\\u0007 \\u009b31m title';
+
+const COMMAND_CASES: CommandCase[] = [
+  { name: 'a title with terminal escapes (ESC, BEL, CSI): shown escaped, not obeyed',
+    setup: (at) => { recipeAt(at, withText('"title":"hostile-input base (invented)"', `"title":${JSON.stringify('hostile \x1b[2J\x1b]0;owned\x07 \x9b31m title')}`)); },
+    args: (at) => ['run', join(at, 'recipe.json'), '--out', join(at, 'out'), '--error-solves', '0', '--quiet'],
+    code: 0, line: () => ESCAPED_TITLE,
+    check: (_, r) => expect(/[\x00-\x09\x0b-\x1f\x7f-\x9f]/.test(r.stdout + r.stderr), JSON.stringify(r.stdout)).toBe(false) },
+  { name: 'run --out "" (the current folder by accident)', setup: (at) => { recipeAt(at); },
+    args: (at) => ['run', join(at, 'recipe.json'), '--out', '', '--quiet'], code: 2,
+    line: () => '--out: is empty; give a folder name (default out/recipe)' },
+  { name: 'sweep --out ""', setup: (at) => { recipeAt(at); },
+    args: (at) => ['sweep', join(at, 'recipe.json'), '--widths', '4,5', '--out', '', '--quiet'], code: 2,
+    line: () => '--out: is empty; give a folder name (default out/recipe-sweep)' },
+  { name: 'spacing --out ""', setup: (at) => { recipeAt(at); },
+    args: (at) => ['spacing', join(at, 'recipe.json'), '--gap', '1', '--out', ' ', '--quiet'], code: 2,
+    line: () => '--out: is empty; give a folder name (default out/recipe-spacing)' },
+  { name: 'a FIFO as the recipe (it would never end)',
+    setup: (at) => { expect(spawnSync('mkfifo', [join(at, 'fifo.json')]).status).toBe(0); },
+    args: (at) => ['run', join(at, 'fifo.json'), '--out', join(at, 'out'), '--quiet'], code: 2,
+    line: (at) => `${join(at, 'fifo.json')}: is a pipe (FIFO), not a regular file; save the recipe to a file and give that` },
+  { name: 'a temporary left by a writer killed on this machine is removed; one of another machine is not',
+    setup: (at) => {
+      recipeAt(at);
+      mkdirSync(join(at, 'out'));
+      const ours = temporaryName(join(at, 'out', 'field.npy'));
+      writeFileSync(ours.replace(`.${process.pid}.`, `.${deadPid()}.`), 'half a field');
+      writeFileSync(join(at, 'out', 'field.npy.other-node.12345.abc123.tmp'), 'a field being written elsewhere');
+    },
+    args: (at) => ['run', join(at, 'recipe.json'), '--out', join(at, 'out'), '--error-solves', '0', '--quiet'], code: 0,
+    line: (at) => `wrote ${join(at, 'out')}/: field.npy, x.npy, z.npy, contour.csv, contour.svg, report.json, recipe.json`,
+    check: (at) => expect(readdirSync(join(at, 'out')).filter((n) => n.endsWith('.tmp'))).toEqual(['field.npy.other-node.12345.abc123.tmp']) },
+  { name: 'view --port already in use',
+    setup: async () => {
+      const server = createServer();
+      await new Promise<void>((done) => server.listen(0, '127.0.0.1', done));
+      busyPort = (server.address() as AddressInfo).port;
+      server.unref();
+    },
+    args: (at) => ['view', at, '--port', String(busyPort)], code: 2,
+    line: () => `--port ${busyPort}: is in use by another program; choose another port, or leave out --port for any free one` },
+  { name: 'run --out under a regular file: refused before the solve, naming the folder',
+    setup: (at) => { recipeAt(at); writeFileSync(join(at, 'plain'), 'not a folder'); },
+    args: (at) => ['run', join(at, 'recipe.json'), '--out', join(at, 'plain', 'out'), '--quiet'], code: 2,
+    line: (at) => `${join(at, 'plain', 'out')}: cannot be written: ${join(at, 'plain')} is a file, not a folder; move that file away, or choose another folder with --out` },
+  { name: 'a species of the recipe\'s own named like a built-in one (B)',
+    setup: (at) => { recipeAt(at, withKey('"dopants":{"B":{"type":"acceptor","D0Cm2PerS":0.76,"EaEv":3.46}}')); },
+    args: (at) => ['run', join(at, 'recipe.json'), '--out', join(at, 'out'), '--quiet'], code: 2,
+    line: () => 'bad recipe: dopants.B: "B" is a built-in dopant (B, P, As, Sb); a species of the recipe\'s own needs another name' },
+  { name: 'a sweep section sweep would refuse ("widthsUm": "1:0:8"): run refuses it too',
+    setup: (at) => { recipeAt(at, withKey('"sweep":{"widthsUm":"1:0:8"}')); },
+    args: (at) => ['run', join(at, 'recipe.json'), '--out', join(at, 'out'), '--quiet'], code: 2,
+    line: () => 'sweep.widthsUm "1:0:8": the step must not be 0 (a range is start:step:stop, e.g. 0.5:0.5:8)',
+    check: (at) => {
+      const sweep = edgewise(['sweep', join(at, 'recipe.json'), '--out', join(at, 'out'), '--quiet']);
+      expect(sweep.code).toBe(2);
+      expect(sweep.stderr).toBe('edgewise: sweep.widthsUm "1:0:8": the step must not be 0 (a range is start:step:stop, e.g. 0.5:0.5:8)\n');
+    } },
+  { name: 'an arsenic implant annealed: no round-off negatives in field.npy',
+    setup: (at) => { recipeAt(at, ARSENIC); },
+    args: (at) => ['run', join(at, 'recipe.json'), '--out', join(at, 'out'), '--error-solves', '0', '--quiet'], code: 0,
+    line: (at) => `wrote ${join(at, 'out')}/: field.npy, x.npy, z.npy, contour.csv, contour.svg, report.json, recipe.json`,
+    // A concentration is never negative (common practice, no source); the file contract says 0 there.
+    check: (at) => expect(smallestSpeciesValue(join(at, 'out', 'field.npy'))).toBe(0) },
+  { name: 'a misspelt step kind ("type"): both the unknown key and the one meant',
+    setup: (at) => { recipeAt(at, withText('{"kind":"drive-in"', '{"type":"drive-in"')); },
+    args: (at) => ['run', join(at, 'recipe.json'), '--out', join(at, 'out'), '--quiet'], code: 2,
+    line: () => 'bad recipe: steps[1]: "type" is not a key here; did you mean "kind"? (one of predeposition, film, implant, drive-in, anneal)' },
+  { name: 'a misspelt key beside the one missing (concentration for concentrationCm3)',
+    setup: (at) => { recipeAt(at, withText('"concentrationCm3":1e15', '"concentration":1e15')); },
+    args: (at) => ['run', join(at, 'recipe.json'), '--out', join(at, 'out'), '--quiet'], code: 2,
+    line: () => 'bad recipe: substrate: "concentration" is not a key here; did you mean "concentrationCm3"?' },
+];
+
+describe('hostile input to every command: its exit code and its one line', () => {
+  COMMAND_CASES.forEach((c) => {
+    it(c.name, async () => {
+      const at = tempDir('edgewise-hostile-command-');
+      await c.setup?.(at);
+      const r = edgewise(c.args(at), { cwd: at });
+      expect(r.code, r.stderr).toBe(c.code);
+      if (c.code === 0) {
+        expect(r.stdout.split('\n'), r.stdout).toContain(c.line(at));
+      } else {
+        expect(r.stderr).toBe(`edgewise: ${c.line(at)}\n`);
+        expect(r.stdout).toBe('');
+      }
+      c.check?.(at, r);
+    });
+  });
+});
+
+describe('the viewer server answers only under its own name (no DNS rebinding)', () => {
+  it('a Host header other than 127.0.0.1 or localhost with the served port is refused (403); its own names are served', async () => {
+    const data = tempDir('edgewise-host-');
+    writeFileSync(join(data, 'report.json'), '{}');
+    const { server, url } = await startViewServer({ dataDir: data, viewerDir: data, port: 0 });
+    const port = Number(new URL(url).port);
+    const status = (host: string) => new Promise<number>((done, fail) => {
+      httpGet({ host: '127.0.0.1', port, path: '/data/report.json', headers: { host } }, (res) => { res.resume(); done(res.statusCode ?? 0); }).on('error', fail);
+    });
+    try {
+      expect(await status('attacker.example')).toBe(403);
+      expect(await status(`attacker.example:${port}`)).toBe(403);
+      expect(await status(`127.0.0.1:${port + 1}`)).toBe(403);
+      expect(await status(`127.0.0.1:${port}`)).toBe(200);
+      expect(await status(`localhost:${port}`)).toBe(200);
+    } finally {
+      server.close();
+    }
   });
 });

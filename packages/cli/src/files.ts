@@ -1,16 +1,116 @@
-import { existsSync, lstatSync, mkdirSync, readlinkSync, realpathSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { existsSync, lstatSync, mkdirSync, readdirSync, rmdirSync, readlinkSync, realpathSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { hostname } from 'node:os';
 import { basename, dirname, join, relative, resolve, sep } from 'node:path';
-import { fileSystemError, InputError } from './errors.ts';
+import { fileSystemError, InputError, UsageError } from './errors.ts';
+
+/** This machine's name as it appears in temporary names: letters, digits and "-" only. */
+const HOST = hostname().replace(/[^A-Za-z0-9-]/g, '-') || 'host';
+
+/**
+ * The temporary name a file is written under before its rename: `<name>.<host>.<pid>.<random>.tmp`.
+ * The host and process id let a later write tell a temporary left by a killed process on this
+ * machine from one another machine (a cluster node sharing the folder) is writing now.
+ */
+export function temporaryName(path: string): string {
+  return `${path}.${HOST}.${process.pid}.${Math.random().toString(36).slice(2)}.tmp`;
+}
+
+const TEMPORARY = /\.([A-Za-z0-9-]+)\.(\d+)\.[0-9a-z]+\.tmp$/;
+
+/** Folders whose stale temporaries this process has already removed. */
+const swept = new Set<string>();
+
+/** Whether a process with this id runs on this machine (EPERM: it does, as another user). */
+function alive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    return (e as NodeJS.ErrnoException).code === 'EPERM';
+  }
+}
+
+/**
+ * Removes, once per folder per process, the temporaries of our naming that a process of this
+ * machine left when it was killed mid-write (kill -9, a power cut): its process is gone, so
+ * no rename will ever come. Temporaries of other machines, or of live processes, are left.
+ */
+export function removeStaleTemporaries(folder: string): void {
+  const key = resolve(folder);
+  if (swept.has(key)) return;
+  swept.add(key);
+  let names: string[];
+  try {
+    names = readdirSync(folder);
+  } catch {
+    return;
+  }
+  for (const name of names) {
+    const m = TEMPORARY.exec(name);
+    if (!m || m[1] !== HOST || Number(m[2]) === process.pid || alive(Number(m[2]))) continue;
+    try {
+      rmSync(join(folder, name), { force: true });
+    } catch {
+      // Left for the next write: removing it is tidiness, not the write's job.
+    }
+  }
+}
+
+/** The --out option: the folder given, or the default; an empty name is refused (it would mean the current folder). */
+export function outFolder(value: string | undefined, fallback: string): string {
+  if (value === undefined) return fallback;
+  if (value.trim() === '') throw new UsageError(`--out: is empty; give a folder name (default ${fallback})`);
+  return value;
+}
+
+/**
+ * Makes the output folder and checks that a file can be written in it, before any work whose
+ * results would go there: a refusal is one line naming the folder, at once, not after a solve.
+ * Returns the folders it made.
+ */
+export function checkWritable(folder: string): string[] {
+  let made: string[];
+  try {
+    made = makeMissingFolders(folder);
+  } catch (e) {
+    throw fileSystemError(e, 'write', folder) ?? e;
+  }
+  const probe = temporaryName(join(folder, '.write-check'));
+  try {
+    writeFileSync(probe, '');
+    rmSync(probe);
+  } catch (e) {
+    try {
+      rmSync(probe, { force: true });
+    } catch {
+      // Nothing was made.
+    }
+    throw fileSystemError(e, 'write', folder) ?? e;
+  }
+  return made;
+}
+
+/** Removes folders checkWritable made (deepest first) where they are still empty: work that failed leaves nothing behind. */
+export function removeEmptyFolders(made: readonly string[]): void {
+  for (const p of [...made].reverse()) {
+    try {
+      rmdirSync(p);
+    } catch {
+      return;
+    }
+  }
+}
 
 /**
  * Writes a file atomically: a temporary name in the same folder, then rename. A write that
  * fails leaves no temporary behind and comes back as one line (errors.ts) when the file
- * system says why.
+ * system says why; the first write into a folder removes what killed writers left there.
  */
 export function writeAtomic(path: string, data: string | Uint8Array): void {
-  const temp = `${path}.${process.pid}.${Math.random().toString(36).slice(2)}.tmp`;
+  const temp = temporaryName(path);
   try {
     makeMissingFolders(dirname(path));
+    removeStaleTemporaries(dirname(path));
     writeFileSync(temp, data);
     renameSync(temp, path);
   } catch (e) {
@@ -45,10 +145,11 @@ export function makeFolders(folder: string): void {
  * One folder at a time from the top: mkdirSync's recursive mode retries without end where a
  * file system refuses new entries (it does so under /proc).
  */
-function makeMissingFolders(folder: string): void {
+function makeMissingFolders(folder: string): string[] {
   const missing: string[] = [];
   for (let p = folder; !existsSync(p) && dirname(p) !== p; p = dirname(p)) missing.push(p);
-  for (const p of missing.reverse()) {
+  missing.reverse();
+  for (const p of missing) {
     try {
       mkdirSync(p);
     } catch (e) {
@@ -56,6 +157,7 @@ function makeMissingFolders(folder: string): void {
       if ((e as NodeJS.ErrnoException).code !== 'EEXIST' || !isFolder(p)) throw e;
     }
   }
+  return missing;
 }
 
 function isFolder(path: string): boolean {

@@ -31,3 +31,16 @@ export function fmtPlusMinus(v: number | null, error: number | null | undefined,
   const place = Math.min(8, Math.max(digits, -Math.floor(Math.log10(error))));
   return `${v.toFixed(place)} ± ${error.toFixed(place)}`;
 }
+
+/**
+ * Control characters (C0, DEL, C1) and the bidirectional overrides, which a terminal would obey
+ * rather than show: an escape sequence in a recipe's title could clear the screen or set the
+ * window title. Each is shown as its JSON-style escape instead (\u001b), as error messages
+ * quote a recipe's text with JSON.stringify.
+ */
+const UNSHOWABLE = /[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g;
+
+/** Text from a recipe (or any input), safe to print on a terminal: controls shown escaped, not obeyed. */
+export function terminalText(text: string): string {
+  return text.replace(UNSHOWABLE, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
+}

@@ -1,4 +1,4 @@
-import { closeSync, openSync, readSync, statSync } from 'node:fs';
+import { closeSync, constants, fstatSync, openSync, readSync, statSync, type Stats } from 'node:fs';
 import { extname } from 'node:path';
 import { isMap, isPair, isScalar, isSeq, parseAllDocuments, type Document } from 'yaml';
 import { fileSystemError, InputError } from './errors.ts';
@@ -33,10 +33,13 @@ function readText(path: string): string {
     throw cannotRead(path, e);
   }
   if (stat.isDirectory()) throw new InputError(`${path}: is a folder, not a recipe file`);
+  // A pipe, socket or device may never end (or, a FIFO with no writer, never even open):
+  // refused before it is opened, so that reading cannot hang.
+  if (!stat.isFile()) throw new InputError(`${path}: is ${specialKind(stat)}, not a regular file; save the recipe to a file and give that`);
   if (stat.size > MAX_RECIPE_BYTES) throw new InputError(`${path}: ${stat.size} bytes is larger than a recipe can be (at most ${MAX_RECIPE_BYTES})`);
   const bytes = readAtMost(path, MAX_RECIPE_BYTES + 1);
-  // A pipe or a device has no size to check beforehand: what it gives is counted instead.
-  if (bytes.length > MAX_RECIPE_BYTES) throw new InputError(`${path}: gives more than ${MAX_RECIPE_BYTES} bytes, larger than a recipe can be`);
+  // A file that grows after its size was taken is counted as it is read.
+  if (bytes.length > MAX_RECIPE_BYTES) throw new InputError(`${path}: holds more than ${MAX_RECIPE_BYTES} bytes, larger than a recipe can be`);
   let text: string;
   try {
     text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
@@ -48,15 +51,26 @@ function readText(path: string): string {
   return text;
 }
 
+/** What a path that is not a regular file or a folder is, in words. */
+function specialKind(stat: Stats): string {
+  if (stat.isFIFO()) return 'a pipe (FIFO)';
+  if (stat.isSocket()) return 'a socket';
+  if (stat.isCharacterDevice() || stat.isBlockDevice()) return 'a device';
+  return 'a special file';
+}
+
 /** Up to `limit` bytes of a file, read in pieces so that an endless source stops there. */
 function readAtMost(path: string, limit: number): Buffer {
   let fd: number;
   try {
-    fd = openSync(path, 'r');
+    // Non-blocking: a FIFO put in the file's place after the check above opens at once (and is refused) rather than waiting for a writer.
+    fd = openSync(path, constants.O_RDONLY | constants.O_NONBLOCK);
   } catch (e) {
     throw cannotRead(path, e);
   }
   try {
+    const stat = fstatSync(fd);
+    if (!stat.isFile()) throw new InputError(`${path}: is ${specialKind(stat)}, not a regular file; save the recipe to a file and give that`);
     const buffer = Buffer.alloc(limit);
     let used = 0;
     while (used < limit) {
@@ -66,7 +80,7 @@ function readAtMost(path: string, limit: number): Buffer {
     }
     return buffer.subarray(0, used);
   } catch (e) {
-    throw cannotRead(path, e);
+    throw e instanceof InputError ? e : cannotRead(path, e);
   } finally {
     closeSync(fd);
   }

@@ -2,6 +2,7 @@ import { createReadStream, existsSync, readdirSync, readFileSync, realpathSync, 
 import { createServer, type IncomingMessage, type Server, type ServerResponse } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { extname, join, relative, resolve, sep } from 'node:path';
+import { InputError } from './errors.ts';
 
 /**
  * The HTTP side of `edgewise view`, on 127.0.0.1 only:
@@ -148,10 +149,24 @@ function sendBatch(res: ServerResponse, dataDir: string, paths: string[]): void 
   res.end();
 }
 
-export function handler(options: ViewServerOptions) {
+/**
+ * Whether a request's Host header names this server as the browser reached it: 127.0.0.1 or
+ * localhost with the served port. Any other name (a domain an attacker's DNS points at
+ * 127.0.0.1, "DNS rebinding") would let a page from elsewhere read the opened folder.
+ */
+export function hostAllowed(host: string | undefined, port: number): boolean {
+  return host === `127.0.0.1:${port}` || host?.toLowerCase() === `localhost:${port}`;
+}
+
+/** `port` gives the port the server listens on (known once it listens); every request must name it in its Host header. */
+export function handler(options: ViewServerOptions, port: () => number) {
   const dataDir = resolve(options.dataDir);
   const viewerDir = resolve(options.viewerDir);
   return (req: IncomingMessage, res: ServerResponse) => {
+    if (!hostAllowed(req.headers.host, port())) {
+      send(res, 403, `this server answers only at 127.0.0.1:${port()} or localhost:${port()}`);
+      return;
+    }
     if (req.method !== 'GET' && req.method !== 'HEAD') {
       send(res, 405, 'only GET');
       return;
@@ -181,12 +196,18 @@ export function handler(options: ViewServerOptions) {
 
 /** Starts the server on 127.0.0.1; resolves with it and its address once listening. */
 export function startViewServer(options: ViewServerOptions): Promise<{ server: Server; url: string }> {
-  const server = createServer(handler(options));
+  let listening = 0;
+  const server = createServer(handler(options, () => listening));
   return new Promise((resolvePromise, reject) => {
-    server.once('error', reject);
+    server.once('error', (e: NodeJS.ErrnoException) => {
+      const asked = options.port ?? 0;
+      if (e.code === 'EADDRINUSE') reject(new InputError(`--port ${asked}: is in use by another program; choose another port, or leave out --port for any free one`));
+      else if (e.code === 'EACCES') reject(new InputError(`--port ${asked}: may not be opened by this user (ports below 1024 need privileges); choose a port from 1024 to 65535, or leave out --port`));
+      else reject(e);
+    });
     server.listen(options.port ?? 0, '127.0.0.1', () => {
-      const { port } = server.address() as AddressInfo;
-      resolvePromise({ server, url: `http://127.0.0.1:${port}/` });
+      listening = (server.address() as AddressInfo).port;
+      resolvePromise({ server, url: `http://127.0.0.1:${listening}/` });
     });
   });
 }

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { BUILTIN_DOPANTS } from './dopants.ts';
 import { DIFFUSION_MODELS, RecipeError } from './recipe-terms.ts';
 
 /**
@@ -74,6 +75,17 @@ const dopantName = z
   .regex(/^[A-Za-z][A-Za-z0-9_-]{0,31}$/, { error: explain('a dopant name of letters, digits, "_" or "-", starting with a letter, at most 32 long') })
   .refine((name) => !INHERITED_NAMES.has(name), { error: (iss) => `must not be ${JSON.stringify(iss.input)}: JavaScript reserves that name; choose another` });
 
+/** A record's error: what is wrong with a key, where a key is at fault; `otherwise` for the rest. */
+function keyOr(otherwise: (iss: Issue) => string) {
+  return (iss: Issue & { code?: string; issues?: readonly { message: string }[] }) =>
+    iss.code === 'invalid_key' && iss.issues?.[0] ? iss.issues[0].message : otherwise(iss);
+}
+
+/** A species of the recipe's own may not take a built-in name: it would silently replace the built-in one. */
+const userDopantName = dopantName.refine((name) => !Object.hasOwn(BUILTIN_DOPANTS, name), {
+  error: (iss) => `${JSON.stringify(iss.input)} is a built-in dopant (${Object.keys(BUILTIN_DOPANTS).join(', ')}); a species of the recipe's own needs another name`,
+});
+
 const concentration = num('cm^-3', 1e10, 1e22);
 const temperatureC = num('°C (the diffusivity tables cover this range)', TEMPERATURE_RANGE_C[0], TEMPERATURE_RANGE_C[1]);
 const minutes = num('minutes', 0, MAX_MINUTES, true);
@@ -125,10 +137,19 @@ const heat = (kind: 'drive-in' | 'anneal') => strict({ kind: z.literal(kind), te
 
 export const STEP_KINDS = ['predeposition', 'film', 'implant', 'drive-in', 'anneal'] as const;
 
-const step = z.discriminatedUnion('kind', [predeposition, film, implant, heat('drive-in'), heat('anneal')], {
+const STEP_SCHEMAS = [predeposition, film, implant, heat('drive-in'), heat('anneal')] as const;
+
+/** Every key some kind of step takes. */
+const STEP_KEYS: readonly string[] = [...new Set(STEP_SCHEMAS.flatMap((schema) => Object.keys(schema.shape)))];
+
+const step = z.discriminatedUnion('kind', [...STEP_SCHEMAS], {
   error: (iss) => {
     const input = iss.input as { kind?: unknown } | undefined;
     if (input === null || typeof input !== 'object' || Array.isArray(input)) return `must be a step object with a "kind" (got ${describeValue(input)})`;
+    if (input.kind === undefined) {
+      const guess = closestKey('kind', Object.keys(input).filter((k) => !STEP_KEYS.includes(k)));
+      if (guess !== null) return `${JSON.stringify(guess)} is not a key here; did you mean "kind"? (one of ${STEP_KINDS.join(', ')})`;
+    }
     return `must be one of ${STEP_KINDS.join(', ')} (got ${describeValue(input.kind)})`;
   },
 });
@@ -220,7 +241,7 @@ export const recipeSchema = strict({
     }
   }),
   diffusion: diffusion.optional(),
-  dopants: z.record(dopantName, userDopant, { error: explain('an object of dopant name → { type, D0Cm2PerS, EaEv }') }).optional(),
+  dopants: z.record(userDopantName, userDopant, { error: keyOr(explain('an object of dopant name → { type, D0Cm2PerS, EaEv }')) }).optional(),
   mesh: meshOptions.optional(),
   numerics: numerics.optional(),
   sweep: sweep.optional(),
@@ -285,13 +306,57 @@ function checkReservedKeys(input: unknown): void {
   }
 }
 
+/** Edits (insert, delete, replace) that turn one word into the other (Levenshtein distance). */
+function editDistance(a: string, b: string): number {
+  let row = Array.from({ length: b.length + 1 }, (_, k) => k);
+  for (let i = 1; i <= a.length; i++) {
+    const next = [i];
+    for (let j = 1; j <= b.length; j++) next[j] = Math.min(row[j] + 1, next[j - 1] + 1, row[j - 1] + (a[i - 1] === b[j - 1] ? 0 : 1));
+    row = next;
+  }
+  return row[b.length];
+}
+
+/** Of keys a recipe does not know, the one most likely meant for `wanted` (fewest edits, case aside); null for none. */
+function closestKey(wanted: string, unknown: readonly string[]): string | null {
+  let best: string | null = null;
+  let bestDistance = Infinity;
+  for (const key of unknown) {
+    const d = editDistance(key.toLowerCase(), wanted.toLowerCase());
+    if (d < bestDistance) {
+      best = key;
+      bestDistance = d;
+    }
+  }
+  return best;
+}
+
+const samePath = (a: readonly PropertyKey[], b: readonly PropertyKey[]) => a.length === b.length && a.every((p, k) => p === b[k]);
+
+/**
+ * One message for the first problem. A required key that is missing beside a key the object
+ * does not know is most likely a misspelling: both are named in one line
+ * (`substrate: "concentration" is not a key here; did you mean "concentrationCm3"?`).
+ */
+function firstProblem(issues: readonly z.core.$ZodIssue[]): RecipeError {
+  const issue = issues[0];
+  const missing = issue.code === 'invalid_type' && issue.input === undefined && issue.path.length > 0 ? issue.path : null;
+  if (missing) {
+    const where = missing.slice(0, -1);
+    const wanted = String(missing[missing.length - 1]);
+    const unknown = issues.find((i) => i.code === 'unrecognized_keys' && samePath(i.path, where));
+    const guess = unknown?.code === 'unrecognized_keys' ? closestKey(wanted, unknown.keys) : null;
+    if (guess !== null) return new RecipeError(pathToField(where), `${JSON.stringify(guess)} is not a key here; did you mean ${JSON.stringify(wanted)}?`);
+  }
+  // A step's missing "kind" is reported at the key; a misspelling of it belongs to the step.
+  const path = /^".*" is not a key here;/.test(issue.message) && issue.path[issue.path.length - 1] === 'kind' ? issue.path.slice(0, -1) : issue.path;
+  return new RecipeError(pathToField(path), issue.message);
+}
+
 /** Validates the shape of a recipe; cross-field rules are checked when it is planned. */
 export function parseRecipe(input: unknown): Recipe {
   checkReservedKeys(input);
   const result = recipeSchema.safeParse(input);
-  if (!result.success) {
-    const issue = result.error.issues[0];
-    throw new RecipeError(pathToField(issue.path), issue.message);
-  }
+  if (!result.success) throw firstProblem(result.error.issues);
   return result.data;
 }

@@ -1,15 +1,16 @@
 import { existsSync, statSync } from 'node:fs';
 import { basename, extname, join } from 'node:path';
 import { parseArgs } from 'node:util';
-import { analyze, coarseReports, parseRecipe, planRecipe, simulate, withErrorBars, type Analysis, type Report } from '@edgewise/solver2d';
+import { analyze, coarseReports, parseRecipe, planRecipe, simulate, withErrorBars, type Analysis, type Recipe, type Report } from '@edgewise/solver2d';
 import { electricalTables } from '../electrical-table.ts';
 import { UsageError } from '../errors.ts';
-import { fmtLength, fmtPlusMinus, fmtRatio, fmtSci, table } from '../format.ts';
+import { fmtLength, fmtPlusMinus, fmtRatio, fmtSci, table, terminalText } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits, withLimitHint } from '../limits.ts';
-import { inside, writeAtomic } from '../files.ts';
+import { checkWritable, inside, outFolder, removeEmptyFolders, writeAtomic } from '../files.ts';
 import { writeRunFolder } from '../output.ts';
 import { progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
+import { sweepParameters } from '../sweep/matrix.ts';
 
 export const RUN_USAGE = `edgewise run RECIPE [--out DIR] [--error-solves 0|1|2] ${LIMITS_USAGE} [--quiet]`;
 
@@ -29,6 +30,14 @@ export function defaultOutFolder(recipePath: string): string {
   return join('out', basename(recipePath, extname(recipePath)));
 }
 
+/**
+ * A recipe's own `sweep` key, checked as `sweep` would check it (ranges, lists, paths), so
+ * that a recipe one command accepts the other does not refuse. A single run ignores its values.
+ */
+export function checkSweepSection(recipe: Recipe): void {
+  if (recipe.sweep !== undefined) sweepParameters(recipe, { set: [] });
+}
+
 export function runCommand(args: string[]): number {
   const { values, positionals } = parseArgs({
     args, allowPositionals: true, strict: true,
@@ -38,12 +47,21 @@ export function runCommand(args: string[]): number {
   const limits = parseLimits(values);
   if (positionals.length !== 1) throw new UsageError(`run takes one recipe file (usage: ${RUN_USAGE})`);
   const recipePath = positionals[0];
-  const out = values.out ?? defaultOutFolder(recipePath);
+  const out = outFolder(values.out, defaultOutFolder(recipePath));
   if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${out}: is a file, not a folder`);
   const started = performance.now();
-  const plan = withLimitHint(limits, () => planRecipe(parseRecipe(readRecipeFile(recipePath)), limits));
+  const recipe = parseRecipe(readRecipeFile(recipePath));
+  checkSweepSection(recipe);
+  const plan = withLimitHint(limits, () => planRecipe(recipe, limits));
+  const made = checkWritable(out);
   const progress = progressReporter(values.quiet ? null : process.stderr, 'solving');
-  const sim = withLimitHint(limits, () => simulate(plan, { onProgress: (p) => progress.update(p.done / p.total) }));
+  let sim;
+  try {
+    sim = withLimitHint(limits, () => simulate(plan, { onProgress: (p) => progress.update(p.done / p.total) }));
+  } catch (e) {
+    removeEmptyFolders(made);
+    throw e;
+  }
   progress.done();
   const analysis = analyze(sim);
   const solved = performance.now();
@@ -64,7 +82,7 @@ export function runCommand(args: string[]): number {
   const now = performance.now();
   const timing = { seconds: (now - started) / 1000, errorSeconds: errorSolves > 0 ? (now - solved) / 1000 : null };
   process.stdout.write(`${summary(analysis, timing.seconds, timing.errorSeconds)}\nwrote ${out}/: ${written.join(', ')}\n`);
-  for (const w of analysis.report.warnings) process.stderr.write(`warning: ${w}\n`);
+  for (const w of analysis.report.warnings) process.stderr.write(`warning: ${terminalText(w)}\n`);
   return 0;
 }
 
@@ -179,7 +197,7 @@ function orderNote(order: number | null): string {
 }
 
 export function summary({ report }: Analysis, seconds: number, errorSeconds: number | null = null): string {
-  const head = report.title ? `${report.title}\n` : '';
+  const head = report.title ? `${terminalText(report.title)}\n` : '';
   const mesh = `mesh ${report.mesh.columns} × ${report.mesh.rows} (finest ${report.mesh.finestXUm} µm across, ${report.mesh.finestZUm} µm down), ` +
     `${report.steps.reduce((n, s) => n + s.timeSteps, 0)} time steps, ${seconds.toFixed(2)} s`;
   const doses = Object.entries(report.doseCm2)

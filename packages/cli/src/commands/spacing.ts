@@ -4,11 +4,11 @@ import {
   analyze, parseRecipe, planRecipe, searchStripeWithError, simulate, SPACING_SCHEMA_ID, StripeSearchError, type StripeSearchWithError,
 } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
-import { inside, writeAtomic } from '../files.ts';
-import { fmtLength, fmtPlusMinus } from '../format.ts';
+import { checkWritable, inside, outFolder, writeAtomic } from '../files.ts';
+import { fmtLength, fmtPlusMinus, terminalText } from '../format.ts';
 import { writeRunFolder } from '../output.ts';
 import { readRecipeFile } from '../read-recipe.ts';
-import { parseErrorSolves } from './run.ts';
+import { checkSweepSection, parseErrorSolves } from './run.ts';
 
 export const SPACING_USAGE = 'edgewise spacing RECIPE --gap G [--tol T] [--out DIR] [--error-solves 0|1|2] [--quiet]';
 
@@ -54,9 +54,11 @@ export function spacingCommand(args: string[]): number {
   const toleranceUm = number('--tol', values.tol, TOL_RANGE_UM, DEFAULT_TOL_UM);
   const errorSolves = parseErrorSolves(values['error-solves']);
   const recipePath = positionals[0];
-  const out = values.out ?? join('out', `${basename(recipePath, extname(recipePath))}-spacing`);
+  const out = outFolder(values.out, join('out', `${basename(recipePath, extname(recipePath))}-spacing`));
   const recipe = parseRecipe(readRecipeFile(recipePath));
+  checkSweepSection(recipe);
   planRecipe(recipe); // bad recipes fail here, before any search
+  checkWritable(out);
   const log = values.quiet ? null : process.stderr;
   const windowCount = recipe.mask.windows?.length ?? 0;
   if (windowCount > 2) log?.write(`note: the search uses the first two windows of the recipe (by x) and drops the other ${windowCount - 2}\n`);
@@ -93,7 +95,7 @@ export function spacingCommand(args: string[]): number {
   const error = result.stripeErrorUm;
   const s = result.spacing;
   process.stdout.write([
-    `${recipe.title ? `${recipe.title}\n` : ''}narrowest masked ${recipe.mask.rectangles ? 'distance between the two rectangles (corner to corner, or to an edge, as they face)' : 'stripe'} keeping a junction-to-junction gap ≥ ${gapUm} µm${recipe.mask.rectangles ? ' at the surface' : ''}: ${fmtPlusMinus(result.stripeUm, error)} µm`,
+    `${recipe.title ? `${terminalText(recipe.title)}\n` : ''}narrowest masked ${recipe.mask.rectangles ? 'distance between the two rectangles (corner to corner, or to an edge, as they face)' : 'stripe'} keeping a junction-to-junction gap ≥ ${gapUm} µm${recipe.mask.rectangles ? ' at the surface' : ''}: ${fmtPlusMinus(result.stripeUm, error)} µm`,
     `bisection to ${toleranceUm} µm: fails at ${fmtLength(result.bracketUm[0], 4)} µm, meets at ${fmtLength(result.bracketUm[1], 4)} µm (${result.solves.length} solves on the default mesh)`,
     `at that stripe: surface gap ${fmtLength(s.surfaceGapUm, 4)} µm, closest approach ${fmtLength(s.minimumGapUm, 4)} µm at depth ${fmtLength(s.minimumGapDepthUm, 4)} µm`,
     error === null ? 'no error bar (--error-solves 0)' : `the same search on meshes ${result.stripesByMeshUm.map((_, k) => (k === 0 ? 'h' : `${2 ** k}h`)).join(', ')}: ${result.stripesByMeshUm.map((v) => v.toFixed(4)).join(', ')} µm (± from Richardson extrapolation)`,

@@ -4,7 +4,7 @@ import { basename, extname, join, resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import { parseRecipe, type PlanLimits } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
-import { inside, makeFolders } from '../files.ts';
+import { inside, makeFolders, outFolder } from '../files.ts';
 import { fmtLength, fmtPlusMinus, fmtRatio, fmtSci, table } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits } from '../limits.ts';
 import { progressReporter } from '../progress.ts';
@@ -79,7 +79,7 @@ export async function sweepCommand(args: string[]): Promise<number> {
   const auto = values.shard?.trim() === 'auto';
   if (shards !== null && !auto) throw new UsageError('--shards N goes with --shard auto (the count of a Kubernetes indexed job) or with --plan');
   const shard = values.shard === undefined ? null : auto ? shardFromEnvironment(process.env, shards) : parseShard(values.shard);
-  const out = values.out ?? defaultSweepFolder(recipePath);
+  const out = outFolder(values.out, defaultSweepFolder(recipePath));
   if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${out}: is a file, not a folder`);
   // The workers start now and load the solver while every run is planned below; on bad
   // input they are stopped before the error is reported.

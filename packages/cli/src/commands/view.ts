@@ -1,7 +1,8 @@
 import { existsSync, statSync } from 'node:fs';
+import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { InputError, UsageError } from '../errors.ts';
-import { ensureViewerBuilt } from '../view-build.ts';
+import { ensureViewerBuilt, viewerRoot } from '../view-build.ts';
 import { startViewServer } from '../view-server.ts';
 
 export const VIEW_USAGE = 'edgewise view DIR [--recipe FILE] [--port N]';
@@ -26,8 +27,14 @@ export async function viewCommand(args: string[]): Promise<number> {
     port = Number(values.port);
     if (!Number.isInteger(port) || port < 0 || port > 65535) throw new UsageError(`--port: must be a whole number from 0 to 65535 (0 = any free port), got ${JSON.stringify(values.port)}`);
   }
-  const viewerDir = await ensureViewerBuilt({ log: (line) => process.stderr.write(`${line}\n`) });
-  const { server, url } = await startViewServer({ dataDir: dir, viewerDir, recipePath: values.recipe ?? null, port });
+  // Listen first, so that a port in use is said at once, not after a build of the viewer.
+  const { server, url } = await startViewServer({ dataDir: dir, viewerDir: join(viewerRoot(), 'dist'), recipePath: values.recipe ?? null, port });
+  try {
+    await ensureViewerBuilt({ log: (line) => process.stderr.write(`${line}\n`) });
+  } catch (e) {
+    server.close();
+    throw e;
+  }
   process.stdout.write(`edgewise view: serving ${dir} at ${url} (Ctrl-C to stop)\n`);
   return new Promise<number>((resolve) => {
     const stop = () => {
