@@ -24,6 +24,8 @@ export interface ElectricalOptions {
   minSpacingUm?: number;
   /** leave out the breakdown searches (their fields stay null) */
   skipBreakdown?: boolean;
+  /** keep each window's Poisson problem in the result (for a benchmark) */
+  keepProblems?: boolean;
 }
 
 export interface WindowElectrical {
@@ -44,6 +46,8 @@ export interface WindowElectrical {
 export interface ElectricalResult {
   windows: (WindowElectrical | null)[];
   warnings: string[];
+  /** each window's problem, with `keepProblems` */
+  problems?: (JunctionProblem | null)[];
   /** the electrostatic mesh, nodes */
   columns: number;
   rows: number;
@@ -138,12 +142,17 @@ export function electricalResults(mesh: Mesh, net: Float64Array, windows: readon
   const { nx, nz } = grid.mesh;
   const components = signComponents(grid.net, nx, nz);
   const warnings: string[] = [];
+  const problems: (JunctionProblem | null)[] = [];
   const results = windows.map(([x0, x1]) => {
     const centre = 0.5 * (x0 + x1);
     const ic = nearestIndex(grid.mesh.x, centre);
     const label = components.labels[ic];
-    if (components.bottom[label] === 1 || grid.net[ic] === 0) return null;
+    if (components.bottom[label] === 1 || grid.net[ic] === 0) {
+      problems.push(null);
+      return null;
+    }
     const problem = windowProblem(grid, components.labels, label, x0, x1);
+    problems.push(problem);
     const result = solveWindow(grid, problem, ic, x0, x1, mesh.widthUm, biases, model, warnings, options.skipBreakdown === true);
     // The region below: substrate if it reaches the bottom.
     let j = 0;
@@ -151,7 +160,7 @@ export function electricalResults(mesh: Mesh, net: Float64Array, windows: readon
     result.biasAgainst = j < nz && components.bottom[components.labels[j * nx + ic]] === 1 ? 'substrate' : 'well';
     return result;
   });
-  return { windows: results, warnings, columns: nx, rows: nz };
+  return { windows: results, warnings, columns: nx, rows: nz, ...(options.keepProblems ? { problems } : {}) };
 }
 
 function finest(axis: Float64Array): number {
