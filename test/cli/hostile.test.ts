@@ -127,7 +127,7 @@ const CASES: Case[] = [
   { name: 'a file over 1 MiB', file: 'large.json', content: `${TEXT.slice(0, -1)},"title":"${'x'.repeat(1 << 20)}"}`,
     line: `{file}: ${TEXT.length + 11 + (1 << 20)} bytes is larger than a recipe can be (at most 1048576)` },
   { name: 'a list, not an object', file: 'list.json', content: '[1, 2, 3]',
-    line: 'bad recipe: recipe: must be an object with schema, title, substrate, crossSection, mask, diffusion, dopants, mesh, numerics, sweep, electrical, steps (got a list of 3)' },
+    line: 'bad recipe: recipe: must be an object with schema, title, substrate, crossSection, mask, diffusion, physics, dopants, mesh, numerics, sweep, electrical, steps (got a list of 3)' },
 
   // Options
   { name: '--max-mesh-points that is not a number', file: 'ok.json', content: TEXT, args: ['--max-mesh-points', 'lots'],

@@ -71,6 +71,20 @@ const BAD: [string, (r: R) => void, string][] = [
   ['a negative dose', (r) => { r.steps[0] = { kind: 'implant', dopant: 'B', doseCm2: -1e15, projectedRangeUm: 0.1, straggleUm: 0.03 }; }, 'steps[0].doseCm2'],
   ['a solubility source outside its table', (r) => { r.steps[0].surfaceConcentrationCm3 = 'solubility'; r.steps[0].temperatureC = 1300; }, 'steps[0].surfaceConcentrationCm3'],
   ['a diffusion model that does not exist', (r) => { r.diffusion = { model: 'fast' }; }, 'diffusion.model'],
+  ['an unknown ambient', (r) => { r.steps[1].ambient = 'ozone'; }, 'steps[1].ambient'],
+  ['an ambient on an implant step', (r) => {
+    r.steps[0] = { kind: 'implant', dopant: 'B', doseCm2: 1e14, projectedRangeUm: 0.1, straggleUm: 0.03, ambient: 'steam' };
+  }, 'steps[0]'],
+  ['TED switched on for arsenic alone', (r) => {
+    r.steps[0] = { kind: 'implant', dopant: 'As', doseCm2: 1e15, projectedRangeUm: 0.05, straggleUm: 0.02 };
+    r.physics = { ted: true };
+  }, 'physics.ted'],
+  ['OED switched on without an oxidising step', (r) => { r.physics = { oxidationEnhanced: true }; }, 'physics.oxidationEnhanced'],
+  ['OED switched on for arsenic alone', (r) => {
+    r.steps[0] = { kind: 'implant', dopant: 'As', doseCm2: 1e15, projectedRangeUm: 0.05, straggleUm: 0.02 };
+    r.steps[1].ambient = 'steam';
+    r.physics = { oxidationEnhanced: true };
+  }, 'physics.oxidationEnhanced'],
 ];
 
 describe('bad recipes: exit 2, one line naming the field, nothing written', () => {

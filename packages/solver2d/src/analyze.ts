@@ -7,6 +7,7 @@ import {
   type LateralReach, type NodeGrid, type Polyline,
 } from './junction.ts';
 import { finestX, finestZ } from './mesh.ts';
+import { oxideAt } from './point-defect-enhancement.ts';
 import type { LedgerEntry, Simulation } from './simulate.ts';
 import { doseFromConcentrationUm } from './units.ts';
 
@@ -65,9 +66,21 @@ export interface Report extends ReportResults {
   doseCm2: Record<string, number>;
   /** dose that entered vs dose in the silicon, per species */
   ledger: Record<string, LedgerEntry>;
+  /** ∫D dt per species over the recipe with the equilibrium (intrinsic) D, µm² */
   thermalBudgetUm2: Record<string, number>;
-  /** per step: temperature (fixed or ramp [start, end]), duration, time steps, and ∫D dt per species, µm² */
-  steps: { index: number; kind: string; temperatureC: number | [number, number] | null; minutes: number; timeSteps: number; thermalBudgetUm2: Record<string, number> }[];
+  /**
+   * per step: temperature (fixed or ramp [start, end]), duration, time steps, and ∫D dt per
+   * species (intrinsic D), µm²; a drive-in or anneal in an oxidising ambient gives it and the
+   * oxide in the windows at its end (µm); where TED or OED acted, each species' time-averaged
+   * D_eff/D (`ted` over the section, `oxidation` where the excess is largest)
+   */
+  steps: {
+    index: number; kind: string; temperatureC: number | [number, number] | null; minutes: number; timeSteps: number;
+    thermalBudgetUm2: Record<string, number>;
+    ambient?: 'dry-oxygen' | 'steam';
+    oxideUm?: number;
+    enhancement?: Record<string, { ted: number; oxidation: number }>;
+  }[];
   /** the layers of field.npy, in order */
   /** [layers, nz, nx], or [layers, nz, ny, nx] in 3D */
   field: { layers: string[]; shape: [number, number, number] | [number, number, number, number] };
@@ -192,12 +205,20 @@ export function analyze(sim: Simulation): Analysis {
     junctions: zeroContours(grid).map((line) => ({ polylinesUm: [line.map(([x, z]) => [rounded(x), rounded(z)] as [number, number])] })),
     doseCm2,
     ledger: sim.ledger,
-    thermalBudgetUm2: Object.fromEntries(Object.entries(plan.thermalBudgetUm2).map(([k, v]) => [k, rounded(v)])),
-    steps: sim.stepRecords.map((r) => ({
-      index: r.index, kind: r.kind, temperatureC: plan.steps[r.index].temperatureC,
-      thermalBudgetUm2: Object.fromEntries(Object.entries(plan.steps[r.index].budgetUm2).map(([k, v]) => [k, rounded(v)])),
-      minutes: r.seconds / 60, timeSteps: r.timeSteps,
-    })),
+    thermalBudgetUm2: Object.fromEntries(Object.keys(plan.thermalBudgetUm2).map((k) =>
+      [k, rounded(plan.steps.reduce((sum, st) => sum + (st.intrinsicBudgetUm2[k] ?? 0), 0))])),
+    steps: sim.stepRecords.map((r) => {
+      const st = plan.steps[r.index];
+      return {
+        index: r.index, kind: r.kind, temperatureC: st.temperatureC,
+        thermalBudgetUm2: Object.fromEntries(Object.entries(st.intrinsicBudgetUm2).map(([k, v]) => [k, rounded(v)])),
+        minutes: r.seconds / 60, timeSteps: r.timeSteps,
+        ...(st.ambient !== 'inert' ? { ambient: st.ambient, oxideUm: rounded(oxideAt(st, st.seconds), 4) } : {}),
+        ...(Object.keys(r.enhancement).length > 0
+          ? { enhancement: Object.fromEntries(Object.entries(r.enhancement).map(([k, e]) => [k, { ted: rounded(e.ted, 4), oxidation: rounded(e.oxidation, 4) }])) }
+          : {}),
+      };
+    }),
     field: { layers: field.names, shape: [field.names.length, mesh.nz, mesh.nx] },
     warnings,
   };

@@ -262,7 +262,10 @@ function fastestBudget(sp: SpeciesPlan, steps: StepPlan[], from: number, peak: n
       continue;
     }
     const surface = budget > 0 ? Math.min(peak, dose / Math.sqrt(Math.PI * budget)) : peak;
-    budget += overStep(st, (t) => diffusivityAt(sp.dopant, t, signed(surface), field));
+    // TED's and OED's enhancement, as a whole step's ratio to the intrinsic budget.
+    const intrinsic = st.intrinsicBudgetUm2[sp.name] ?? 0;
+    const enhancement = intrinsic > 0 ? (st.budgetUm2[sp.name] ?? intrinsic) / intrinsic : 1;
+    budget += enhancement * overStep(st, (t) => diffusivityAt(sp.dopant, t, signed(surface), field));
   }
   return budget;
 }

@@ -1,5 +1,6 @@
 import type { Dopant, DopantType } from './dopants.ts';
 import type { ImplantSpec } from './implant.ts';
+import type { Ambient } from './oxidation.ts';
 import type { Step } from './recipe.ts';
 import type { DIFFUSION_MODELS } from './recipe-terms.ts';
 
@@ -22,8 +23,19 @@ export interface StepPlan {
   surfaceAtSolubility: boolean;
   doseCm2: number | null;
   implant: ImplantSpec | null;
-  /** ∫D dt of every species present during this step (intrinsic D), µm² */
+  /**
+   * ∫D dt of every species present during this step, µm²: with TED's extra and OED's largest
+   * factor where they apply (point-defect-enhancement.ts), so that the mesh and the step clock
+   * see how far the dopant really goes; the intrinsic D's alone in `intrinsicBudgetUm2`.
+   */
   budgetUm2: Record<string, number>;
+  intrinsicBudgetUm2: Record<string, number>;
+  /** the gas of a drive-in or anneal ("inert" for every other step) */
+  ambient: Ambient;
+  /** the "+1" interstitial pool at the step's start, cm⁻¹ (0 with TED off) */
+  poolPerCm: number;
+  /** oxide in the windows at the step's start, µm */
+  oxideUm: number;
 }
 
 export type DiffusionModel = (typeof DIFFUSION_MODELS)[number];

@@ -9,6 +9,7 @@ import { RecipeError } from './recipe-terms.ts';
 import { DEFAULT_LIMITS, type Numerics, type PlanLimits, type SpeciesPlan, type StepPlan } from './plan-terms.ts';
 import { overStep } from './thermal-budget.ts';
 import { interpolateSolubility, solidSolubilityCm3 } from './solubility.ts';
+import { effectiveBudgetUm2, planEnhancements, resolvePhysics, type PhysicsSwitches } from './point-defect-enhancement.ts';
 import { minutesToSeconds } from './units.ts';
 
 /*
@@ -36,6 +37,8 @@ export interface Plan {
   reachUm: number;
   limits: PlanLimits;
   warnings: string[];
+  /** the recipe's physics switches as they apply to it */
+  physics: PhysicsSwitches;
 }
 
 /**
@@ -86,7 +89,7 @@ function resolveSpecies(recipe: Recipe): { species: SpeciesPlan[]; firstStep: Re
 }
 
 /** The steps in solver units, each with the thermal budget of every species present. */
-function planSteps(recipe: Recipe, species: SpeciesPlan[], firstStep: Record<string, number>): StepPlan[] {
+function planSteps(recipe: Recipe, species: SpeciesPlan[], firstStep: Record<string, number>, physics: PhysicsSwitches): StepPlan[] {
   const steps: StepPlan[] = recipe.steps.map((step, k) => {
     const temperatureC = stepTemperature(step);
     const startC = temperatureC === null ? null : typeof temperatureC === 'number' ? temperatureC : temperatureC[0];
@@ -113,12 +116,19 @@ function planSteps(recipe: Recipe, species: SpeciesPlan[], firstStep: Record<str
         ? { doseCm2: step.doseCm2, projectedRangeUm: step.projectedRangeUm, straggleUm: step.straggleUm, lateralStraggleUm: step.lateralStraggleUm ?? step.straggleUm }
         : null,
       budgetUm2: {},
+      intrinsicBudgetUm2: {},
+      ambient: (step.kind === 'drive-in' || step.kind === 'anneal' ? step.ambient : undefined) ?? 'inert',
+      poolPerCm: 0,
+      oxideUm: 0,
     };
   });
+  planEnhancements(steps, steps.map((st) => st.implant), physics);
   for (const st of steps) {
     for (const s of species) {
       if (st.index < firstStep[s.name]) continue;
-      st.budgetUm2[s.name] = overStep(st, (t) => intrinsicDiffusivity(s.dopant, t));
+      const intrinsic = overStep(st, (t) => intrinsicDiffusivity(s.dopant, t));
+      st.intrinsicBudgetUm2[s.name] = intrinsic;
+      st.budgetUm2[s.name] = st.seconds > 0 && st.startC !== null ? effectiveBudgetUm2(st, s.name, s.dopant, intrinsic, 0, st.seconds, physics) : intrinsic;
     }
   }
   return steps;
@@ -130,7 +140,8 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
   const warnings: string[] = [];
   const background = recipe.substrate.concentrationCm3;
   const { species, firstStep } = resolveSpecies(recipe);
-  const steps = planSteps(recipe, species, firstStep);
+  const physics = resolvePhysics(recipe, species.map((s) => s.name));
+  const steps = planSteps(recipe, species, firstStep, physics);
   const thermalBudgetUm2: Record<string, number> = {};
   for (const s of species) thermalBudgetUm2[s.name] = steps.reduce((sum, st) => sum + (st.budgetUm2[s.name] ?? 0), 0);
   const profile = profileReach(steps, species, thermalBudgetUm2, background);
@@ -140,7 +151,7 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
     substrate: { dopant: recipe.substrate.dopant, type: substrateDopant.type, concentrationCm3: background },
     species, steps, mesh, mask, space,
     numerics: { stepGrowth: recipe.numerics?.stepGrowth ?? DEFAULT_STEP_GROWTH, startupSteps: recipe.numerics?.startupSteps ?? 3 },
-    thermalBudgetUm2, reachUm: profile.reachUm, limits, warnings,
+    thermalBudgetUm2, reachUm: profile.reachUm, limits, warnings, physics,
   };
 }
 

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { BUILTIN_DOPANTS } from './dopants.ts';
+import { AMBIENTS } from './oxidation.ts';
 import { DIFFUSION_MODELS, RecipeError } from './recipe-terms.ts';
 
 /**
@@ -133,7 +134,10 @@ const implant = strict({
   lateralStraggleUm: num('µm', 0, 10, true).optional(),
 });
 
-const heat = (kind: 'drive-in' | 'anneal') => strict({ kind: z.literal(kind), temperatureC: temperatureOrRamp, minutes });
+/** The gas over the wafer during a heat: an oxidising one grows oxide in the windows (see oxidation.ts). */
+const ambient = z.enum(AMBIENTS, { error: explain(`one of ${AMBIENTS.map((a) => `"${a}"`).join(', ')}`) });
+
+const heat = (kind: 'drive-in' | 'anneal') => strict({ kind: z.literal(kind), temperatureC: temperatureOrRamp, minutes, ambient: ambient.optional() });
 
 export const STEP_KINDS = ['predeposition', 'film', 'implant', 'drive-in', 'anneal'] as const;
 
@@ -178,6 +182,18 @@ const diffusion = strict({
   model: model.optional(),
   species: z.record(dopantName, model, { error: explain('an object of dopant name → model') }).optional(),
   fieldEnhancement: z.boolean({ error: explain('true or false') }).optional(),
+});
+
+/**
+ * Models of the dopants' physics beyond Fick's law with D(T, n), each on by default where the
+ * recipe's species and steps call for it, and each switched off by `false` to see how much it
+ * contributes. `ted`: transient enhanced diffusion of B and P after an implant;
+ * `oxidationEnhanced`: oxidation-enhanced (B, P) and -retarded (Sb) diffusion in an oxidising ambient.
+ */
+const onOff = z.boolean({ error: explain('true or false') });
+const physics = strict({
+  ted: onOff.optional(),
+  oxidationEnhanced: onOff.optional(),
 });
 
 const meshOptions = strict({
@@ -240,6 +256,7 @@ export const recipeSchema = strict({
     }
   }),
   diffusion: diffusion.optional(),
+  physics: physics.optional(),
   dopants: z.record(userDopantName, userDopant, { error: keyOr(explain('an object of dopant name → { type, D0Cm2PerS, EaEv }')) }).optional(),
   mesh: meshOptions.optional(),
   numerics: numerics.optional(),

@@ -142,6 +142,12 @@ export const reportSchema = z.strictObject({
   steps: z.array(z.strictObject({
     index: z.number().int(), kind: z.string(), temperatureC: z.union([z.number(), z.tuple([z.number(), z.number()])]).nullable(), minutes: z.number(), timeSteps: z.number().int(),
     thermalBudgetUm2: counts,
+    ambient: z.enum(['dry-oxygen', 'steam']).optional().describe('an oxidising drive-in or anneal'),
+    oxideUm: z.number().optional().describe('oxide in the windows at the end of an oxidising step, µm (Deal–Grove)'),
+    enhancement: z.record(z.string(), z.strictObject({
+      ted: z.number().describe('time-averaged D_eff/D from transient enhanced diffusion, uniform over the section'),
+      oxidation: z.number().describe('time-averaged D_eff/D from oxidation where the interstitial excess is largest'),
+    })).optional().describe('per species where TED or OED acted in this step'),
   })),
   field: z.strictObject({
     layers: z.array(z.string()),

@@ -6,6 +6,7 @@ import { temperatureAt, type Plan, type SpeciesPlan, type StepPlan } from './pla
 import { keepLayout } from './layouts.ts';
 import { simulate3d } from './simulate3d.ts';
 import { finestX, finestZ } from './mesh.ts';
+import { DefectEnhancement, type StepEnhancementRecord } from './point-defect-enhancement.ts';
 import { isSealed, sourcePeaks, speedupOf, StepClock, type ProfileAges } from './step-clock.ts';
 import { concentrationFromDose, doseFromConcentrationUm } from './units.ts';
 
@@ -39,6 +40,8 @@ export interface StepRecord {
   kind: string;
   timeSteps: number;
   seconds: number;
+  /** per species where TED or OED acted in this step: its time-averaged factors */
+  enhancement: Record<string, StepEnhancementRecord>;
 }
 
 export interface Simulation {
@@ -84,17 +87,22 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   }
   const nonlinear = species.filter((s) => s.model === 'charged-defect');
   const run: Run = {
-    plan, options, peaks, concentration, entered, done: 0, total, present: [],
+    plan, options, peaks, concentration, entered, done: 0, total, present: [], presentIndex: [],
     stepper: keepLayout(new AdiStepper(mesh, mask)),
     coupled: nonlinear.length > 0 ? keepLayout(new CoupledDiffusivity(plan, cells)) : null,
+    enhancement: enhanced(plan) ? new DefectEnhancement(plan, species.length) : null,
   };
   const stepRecords: StepRecord[] = [];
   for (const st of steps) {
     const sp = st.dopant ? species.find((s) => s.name === st.dopant)! : null;
-    if (sp && !run.present.includes(sp)) run.present.push(sp);
+    if (sp && !run.present.includes(sp)) {
+      run.present.push(sp);
+      run.presentIndex.push(species.indexOf(sp));
+    }
     if (sp) placeSource(run, st, sp);
+    run.enhancement?.begin();
     const issued = runStep(run, st, clocks[st.index], st.kind === 'predeposition' ? sp : null);
-    stepRecords.push({ index: st.index, kind: st.kind, timeSteps: issued, seconds: st.seconds });
+    stepRecords.push({ index: st.index, kind: st.kind, timeSteps: issued, seconds: st.seconds, enhancement: enhancementRecords(run) });
   }
   return { plan, concentration, ledger: ledgerOf(run), stepRecords };
 }
@@ -108,10 +116,13 @@ interface Run {
   concentration: Record<string, Float64Array>;
   /** atoms that entered each species' field, per µm of cross-section length */
   entered: Record<string, number>;
-  /** species introduced so far, in order */
+  /** species introduced so far, in order, and each one's index in plan.species */
   present: SpeciesPlan[];
+  presentIndex: number[];
   stepper: AdiStepper;
   coupled: CoupledDiffusivity | null;
+  /** TED and OED in the time loop, where some step has them */
+  enhancement: DefectEnhancement | null;
   /** time steps done, and the total planned (brought down as steps end early) */
   done: number;
   total: number;
@@ -191,7 +202,7 @@ function placeSource(run: Run, st: StepPlan, sp: SpeciesPlan): void {
 
 /** Runs one process step's time steps; `held` is the species a predeposition holds at its surface value. Returns the steps taken. */
 function runStep(run: Run, st: StepPlan, planned: PlannedClock, held: SpeciesPlan | null): number {
-  const { concentration, entered, present, stepper, coupled, options } = run;
+  const { concentration, entered, present, stepper, coupled, options, enhancement } = run;
   const { clock } = planned;
   coupled?.restart();
   let previousDt = 0;
@@ -217,7 +228,11 @@ function runStep(run: Run, st: StepPlan, planned: PlannedClock, held: SpeciesPla
     // A concentration-dependent D can feed Peaceman–Rachford's undamped stiff modes (see
     // DAMPED_STEPS): where the field has begun to ring, the next steps are split implicit.
     const budgets = packedMap(present, (s) => componentBudgets(st, s, t0, t1));
-    if (coupled && coupled.prepare(concentration, present, budgets, midC, previousDt > 0 ? dt / (2 * previousDt) : 0)) damped = DAMPED_STEPS;
+    // TED scales each species' budgets; OED asks for ν per node. The lagged coefficients
+    // extrapolate over the step's budget, so their weight follows TED's scale with the time.
+    const perNode = enhancement !== null && enhancement.apply(st, present, run.presentIndex, budgets, t0, t1);
+    const weightDt = enhancement ? dt * enhancement.scale : dt;
+    if (coupled && coupled.prepare(concentration, present, budgets, midC, previousDt > 0 ? weightDt / (2 * previousDt) : 0)) damped = DAMPED_STEPS;
     const scheme = timeStep.implicit || damped > 0 ? 'split-implicit' : 'peaceman-rachford';
     if (damped > 0) damped--;
     for (let n = 0; n < present.length; n++) {
@@ -225,20 +240,47 @@ function runStep(run: Run, st: StepPlan, planned: PlannedClock, held: SpeciesPla
       const isHeld = s === held;
       const c = concentration[s.name];
       const nu = budgets[n];
+      const oxidising = perNode && enhancement!.excessOf(n) > 0;
       if (coupled && s.model === 'charged-defect') {
         const node = coupled.nodeBudgets(s, nu);
-        entered[s.name] += stepper.stepVariable(c, node, scheme, isHeld, surface, coupled.uniformLines());
+        if (oxidising) entered[s.name] += stepper.stepVariable(c, enhancement!.scaleNodes(node, s.name, n), scheme, isHeld, surface, null);
+        else entered[s.name] += stepper.stepVariable(c, node, scheme, isHeld, surface, coupled.uniformLines());
+      } else if (oxidising) {
+        entered[s.name] += stepper.stepVariable(c, enhancement!.uniformNodes(nu.neutral + nu.single + nu.double, s.name, n), scheme, isHeld, surface, null);
       } else {
         entered[s.name] += stepper.step(c, nu.neutral + nu.single + nu.double, scheme, isHeld, surface);
       }
     }
-    previousDt = dt;
+    previousDt = weightDt;
     run.done++;
     guardFinite(concentration, present, stepper, st.index, t1);
     options.onProgress?.({ done: run.done, total: run.total, step: st.index, seconds: t1 });
     if (options.shouldStop?.()) throw new StoppedError();
   }
   return issued;
+}
+
+/**
+ * True where TED or OED acts somewhere: some step's budget differs from the intrinsic one, or
+ * (OED retarding antimony leaves its largest factor at 1) a step oxidises with OED on.
+ */
+function enhanced(plan: Plan): boolean {
+  for (const st of plan.steps) {
+    if (plan.physics.oxidationEnhanced && st.ambient !== 'inert') return true;
+    for (const name in st.budgetUm2) if (st.budgetUm2[name] !== st.intrinsicBudgetUm2[name]) return true;
+  }
+  return false;
+}
+
+/** The step's time-averaged TED and OED factors of each species they changed. */
+function enhancementRecords(run: Run): Record<string, StepEnhancementRecord> {
+  const out: Record<string, StepEnhancementRecord> = {};
+  if (!run.enhancement) return out;
+  run.plan.species.forEach((s, k) => {
+    const r = run.enhancement!.record(k);
+    if (r.ted !== 1 || r.oxidation !== 1) out[s.name] = r;
+  });
+  return out;
 }
 
 /** Dose that entered and dose in the silicon, per species, per unit of open window. */

@@ -90,7 +90,8 @@ export function simulate3d(plan: Plan, space: Space3d, options: SimulateOptions 
       options.onProgress?.({ done, total, step: st.index, seconds: t1 });
       if (options.shouldStop?.()) throw new StoppedError();
     }
-    stepRecords.push({ index: st.index, kind: st.kind, timeSteps: issued, seconds: st.seconds });
+    // TED and OED are not applied in 3D yet: no enhancement to record.
+    stepRecords.push({ index: st.index, kind: st.kind, timeSteps: issued, seconds: st.seconds, enhancement: {} });
   }
   const ledger: Record<string, LedgerEntry> = {};
   const area = openArea3d(mesh, mask);

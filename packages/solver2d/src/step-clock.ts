@@ -1,5 +1,6 @@
 import { diffusivityAt, intrinsicDiffusivity } from './dopants.ts';
 import { integrate, temperatureAt, type Plan, type SpeciesPlan, type StepPlan } from './plan.ts';
+import { clockTimes, effectiveBudgetUm2 } from './point-defect-enhancement.ts';
 import { geometricSteps } from './schedule.ts';
 import { concentrationFromDose } from './units.ts';
 
@@ -152,14 +153,20 @@ export class StepClock {
     // Budget → time: cumulative budget of the reference species at the ends of many pieces,
     // each by one five-point Gauss rule: across 1/256 of the widest ramp (800 K) D changes by
     // under 10 %, and the rule integrates an exponential that flat to rounding.
-    const pieces = st.startC === st.endC ? 1 : 256;
-    const times = new Float64Array(pieces + 1);
+    // A step with TED or OED tabulates its own budget, enhancement included, on 256 pieces
+    // (TED's half of them geometric in time, see clockTimes), scaled to end on the step's total.
+    const enhanced = total !== st.intrinsicBudgetUm2[reference.name];
+    const pieces = enhanced || st.startC !== st.endC ? 256 : 1;
+    const times = enhanced && st.poolPerCm > 0 ? clockTimes(st, pieces) : new Float64Array(pieces + 1);
     const cumulative = new Float64Array(pieces + 1);
     const diffusivity = (t: number) => intrinsicDiffusivity(reference.dopant, temperatureAt(st, t));
     for (let p = 1; p <= pieces; p++) {
-      times[p] = (st.seconds * p) / pieces;
-      cumulative[p] = cumulative[p - 1] + integrate(diffusivity, times[p - 1], times[p]);
+      if (!(enhanced && st.poolPerCm > 0)) times[p] = (st.seconds * p) / pieces;
+      const plain = integrate(diffusivity, times[p - 1], times[p]);
+      cumulative[p] = cumulative[p - 1] +
+        (enhanced ? effectiveBudgetUm2(st, reference.name, reference.dopant, plain, times[p - 1], times[p], plan.physics) : plain);
     }
+    if (enhanced) for (let p = 1; p <= pieces; p++) cumulative[p] *= total / cumulative[pieces];
     this.timeAt = (beta: number) => {
       let p = 0;
       while (p + 1 < pieces && cumulative[p + 1] < beta) p++;
