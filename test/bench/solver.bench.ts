@@ -5,7 +5,9 @@
  *    against the mesh- and step-converged values.
  * 3. Nonlinear (charged-defect) against linear (intrinsic) time on the same mesh, for the
  *    reference case and the bundled examples.
- * 4. The whole CLI process on the reference case.
+ * 4. The high-concentration models (Fair–Tsai kink and tail, active/inactive split) on and off,
+ *    for each example and two cases of their own, against a linear step on the same mesh size.
+ * 5. The whole CLI process on the reference case.
  */
 import { execFileSync } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
@@ -117,6 +119,47 @@ console.log('nonlinear profile (the deeper one); CPU time, best of 8 runs taken 
   console.log('\nThe same against a linear case of equal reach: intrinsic, on the same mesh, with every step\'s duration');
   console.log('stretched by the factor that brings its junction depth at the first window to the nonlinear one (0.1 %)');
   for (const line of equalReach) console.log(line);
+}
+
+
+console.log('\nHigh-concentration models on (defaults) and off (physics switches false), and linear (intrinsic, all off),');
+console.log('each on the mesh size planned with the models on; CPU time, best of 5 runs taken in turn');
+{
+  const OFF = { phosphorusKink: false, clustering: false, ted: false, oxidationEnhanced: false };
+  const cases: [string, Record<string, unknown>][] = [
+    ...['base-resistor.json', 'boron-base.json', 'arsenic-source-drain.json', 'phosphorus-well.yaml']
+      .map((f): [string, Record<string, unknown>] => [`examples/${f}`, readRecipeFile(join(process.cwd(), 'examples', f)) as Record<string, unknown>]),
+    ['emitter: P 3e20 cm^-3, 850 °C 20 min', {
+      substrate: { dopant: 'B', concentrationCm3: 1e16 }, crossSection: { widthUm: 5 }, mask: { windows: [[0, 2]] },
+      steps: [{ kind: 'predeposition', dopant: 'P', surfaceConcentrationCm3: 3e20, temperatureC: 850, minutes: 20 }],
+    }],
+    ['As 5e15 cm^-2 implant, 1000 °C 30 min', {
+      substrate: { dopant: 'B', concentrationCm3: 1e16 }, crossSection: { widthUm: 2 }, mask: { windows: [[0, 1]] },
+      steps: [{ kind: 'implant', dopant: 'As', doseCm2: 5e15, projectedRangeUm: 0.05, straggleUm: 0.02 }, { kind: 'anneal', temperatureC: 1000, minutes: 30 }],
+    }],
+  ];
+  const cpu = (f: () => unknown) => {
+    const t0 = process.cpuUsage();
+    f();
+    const t = process.cpuUsage(t0);
+    return (t.user + t.system) / 1000;
+  };
+  for (const [name, recipe] of cases) {
+    const on = planRecipe(parseRecipe(recipe));
+    const same = { ...recipe, crossSection: { ...(recipe.crossSection as object), depthUm: on.mesh.depthUm }, mesh: { columns: on.mesh.nx, rows: on.mesh.nz } };
+    const off = planRecipe(parseRecipe({ ...same, physics: OFF }));
+    const linear = planRecipe(parseRecipe({ ...same, physics: OFF, diffusion: { model: 'intrinsic' } }));
+    const plans = [on, off, linear];
+    const ms = [Infinity, Infinity, Infinity];
+    const steps = plans.map(stepsOf);
+    for (let r = 0; r < 5; r++) plans.forEach((p, k) => { ms[k] = Math.min(ms[k], cpu(() => simulate(p))); });
+    const points = on.mesh.nx * on.mesh.nz;
+    const perStep = ms.map((m, k) => (m * 1e6) / (steps[k] * points));
+    const used = on.models.filter((m) => m.model !== 'charged-defect').map((m) => `${m.model} ${m.species.join('+')}`).join(', ') || 'none';
+    console.log(`  ${name.padEnd(38)} ${on.mesh.nx} × ${on.mesh.nz} [${used}]: on ${ms[0].toFixed(0)} ms (${steps[0]} steps), ` +
+      `off ${ms[1].toFixed(0)} ms (${steps[1]}), linear ${ms[2].toFixed(0)} ms (${steps[2]}); per step ${perStep[0].toFixed(1)} / ` +
+      `${perStep[1].toFixed(1)} / ${perStep[2].toFixed(1)} ns/point: on = ${(perStep[0] / perStep[1]).toFixed(2)}× off, ${(perStep[0] / perStep[2]).toFixed(2)}× linear`);
+  }
 }
 
 function medianOf(values: number[]): number {

@@ -126,6 +126,8 @@ const CASES: Case[] = [
   { name: 'a file that is not there', file: 'missing.json', line: '{file}: no such recipe file' },
   { name: 'a file over 1 MiB', file: 'large.json', content: `${TEXT.slice(0, -1)},"title":"${'x'.repeat(1 << 20)}"}`,
     line: `{file}: ${TEXT.length + 11 + (1 << 20)} bytes is larger than a recipe can be (at most 1048576)` },
+  { name: 'the phosphorus kink switched on for a boron recipe', file: 'kink.json', content: `${TEXT.slice(0, -1)},"physics":{"phosphorusKink":true}}`,
+    line: 'bad recipe: physics.phosphorusKink: applies to phosphorus (P), which no step introduces (introduced: B); set it false or leave it out' },
   { name: 'a list, not an object', file: 'list.json', content: '[1, 2, 3]',
     line: 'bad recipe: recipe: must be an object with schema, title, substrate, crossSection, mask, diffusion, physics, dopants, mesh, numerics, sweep, electrical, steps (got a list of 3)' },
 

@@ -8,7 +8,7 @@ import {
 } from './junction.ts';
 import { finestX, finestZ } from './mesh.ts';
 import { oxideAt } from './point-defect-enhancement.ts';
-import type { LedgerEntry, Simulation } from './simulate.ts';
+import { openWidth, type LedgerEntry, type Simulation } from './simulate.ts';
 import { doseFromConcentrationUm } from './units.ts';
 
 import { REPORT_SCHEMA_ID } from './schema-ids.ts';
@@ -64,6 +64,13 @@ export interface Report extends ReportResults {
   junctions: { polylinesUm: Polyline[] }[];
   /** dose per species per unit of open window area, cm^-2 */
   doseCm2: Record<string, number>;
+  /**
+   * Per species: total and active dose per unit of open window area (cm^-2), the peak active and
+   * peak total concentration (cm^-3); active is all of it for a species without an inactive part.
+   */
+  activation: Record<string, { totalDoseCm2: number; activeDoseCm2: number; peakActiveCm3: number; peakTotalCm3: number }>;
+  /** the diffusion models used, with the species each applied to and its source */
+  models: { model: string; species: string[]; source: string }[];
   /** dose that entered vs dose in the silicon, per species */
   ledger: Record<string, LedgerEntry>;
   /** ∫D dt per species over the recipe with the equilibrium (intrinsic) D, µm² */
@@ -115,6 +122,25 @@ function weightedSum(a: Float64Array, b: Float64Array): number {
   let sum = 0;
   for (let j = 0; j < a.length; j++) sum += a[j] * b[j];
   return sum;
+}
+
+/** ∫∫C dx dz over the cross-section, cm^-3·µm² (rows of nx cells, dx each, dzVolume[j] deep). */
+function content(c: Float64Array, dx: Float64Array, dz: Float64Array): number {
+  const nx = dx.length;
+  let sum = 0;
+  for (let j = 0, k = 0; j < dz.length; j++) {
+    let row = 0;
+    for (let i = 0; i < nx; i++, k++) row += c[k] * dx[i];
+    sum += row * dz[j];
+  }
+  return sum;
+}
+
+/** The largest value of an array. */
+function largest(v: Float64Array): number {
+  let top = 0;
+  for (let k = 0; k < v.length; k++) top = v[k] > top ? v[k] : top;
+  return top;
 }
 
 export function analyze(sim: Simulation): Analysis {
@@ -192,6 +218,19 @@ export function analyze(sim: Simulation): Analysis {
   const doseCm2: Record<string, number> = {};
   for (const s of plan.species) doseCm2[s.name] = rounded(sim.ledger[s.name].inSiliconCm2);
 
+  const activation: Report['activation'] = {};
+  const area = openWidth(plan);
+  for (const s of plan.species) {
+    const total = sim.concentration[s.name];
+    const active = sim.active[s.name] ?? total;
+    activation[s.name] = {
+      totalDoseCm2: rounded(sim.ledger[s.name].inSiliconCm2),
+      activeDoseCm2: rounded(doseFromConcentrationUm(content(active, mesh.dx, mesh.dzVolume) / area)),
+      peakActiveCm3: rounded(largest(active)),
+      peakTotalCm3: rounded(largest(total)),
+    };
+  }
+
   const results = engineeringResults(sim, field, grid, reaches);
   const report: Report = {
     schema: REPORT_SCHEMA_ID,
@@ -204,6 +243,8 @@ export function analyze(sim: Simulation): Analysis {
     mobility: results.mobility,
     junctions: zeroContours(grid).map((line) => ({ polylinesUm: [line.map(([x, z]) => [rounded(x), rounded(z)] as [number, number])] })),
     doseCm2,
+    activation,
+    models: plan.models.map((m) => ({ ...m, species: [...m.species] })),
     ledger: sim.ledger,
     thermalBudgetUm2: Object.fromEntries(Object.keys(plan.thermalBudgetUm2).map((k) =>
       [k, rounded(plan.steps.reduce((sum, st) => sum + (st.intrinsicBudgetUm2[k] ?? 0), 0))])),

@@ -254,6 +254,13 @@ export function analyze3d(sim: Simulation, space: Space3d): Analysis {
     plan: { outlines, mirrorX: space.mirrorX, mirrorY: space.mirrorY },
     junctions: [],
     doseCm2,
+    // The active dose is the total's scaled by the ratio of the active to the total content.
+    activation: Object.fromEntries(plan.species.map((s) => [s.name, {
+      totalDoseCm2: doseCm2[s.name],
+      activeDoseCm2: rounded(doseCm2[s.name] * contentOf(sim.active[s.name] ?? sim.concentration[s.name], mesh) / Math.max(contentOf(sim.concentration[s.name], mesh), 1e-300)),
+      peakActiveCm3: rounded(peakOf(sim.active[s.name] ?? sim.concentration[s.name])), peakTotalCm3: rounded(peakOf(sim.concentration[s.name])),
+    }])),
+    models: plan.models.map((m) => ({ ...m, species: [...m.species] })),
     ledger: sim.ledger,
     thermalBudgetUm2: Object.fromEntries(Object.entries(plan.thermalBudgetUm2).map(([k, v]) => [k, rounded(v)])),
     steps: sim.stepRecords.map((r) => ({
@@ -265,4 +272,28 @@ export function analyze3d(sim: Simulation, space: Space3d): Analysis {
     warnings,
   };
   return { report, field, grid };
+}
+
+/** The largest value of a field. */
+function peakOf(v: Float64Array): number {
+  let top = 0;
+  for (let k = 0; k < v.length; k++) top = v[k] > top ? v[k] : top;
+  return top;
+}
+
+/** ∫∫∫C dx dy dz over the domain (x-contiguous [z][y][x]). */
+function contentOf(c: Float64Array, mesh: { dx: Float64Array; dy: Float64Array; dzVolume: Float64Array }): number {
+  const nx = mesh.dx.length;
+  const ny = mesh.dy.length;
+  let sum = 0;
+  for (let k = 0, p = 0; k < mesh.dzVolume.length; k++) {
+    let plane = 0;
+    for (let j = 0; j < ny; j++) {
+      let row = 0;
+      for (let i = 0; i < nx; i++, p++) row += c[p] * mesh.dx[i];
+      plane += row * mesh.dy[j];
+    }
+    sum += plane * mesh.dzVolume[k];
+  }
+  return sum;
 }

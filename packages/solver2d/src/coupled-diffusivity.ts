@@ -1,6 +1,8 @@
 import type { UniformLines } from './adi.ts';
 import { componentsAt, type ComponentDiffusivities } from './dopants.ts';
+import { activateField } from './activation.ts';
 import { intrinsicCarriersCm3 } from './intrinsic.ts';
+import { kinkElectronsCm3, surfaceElectronsCm3, tailFactor } from './phosphorus-kink.ts';
 import { integrate, temperatureAt, type Plan, type SpeciesPlan, type StepPlan } from './plan.ts';
 import { PRIMING_CALLS, primeOnce } from './priming.ts';
 
@@ -60,9 +62,22 @@ export class CoupledDiffusivity {
   private readonly uniform: UniformLines;
   private readonly deviation: Float64Array;
   private uniformCount = 0;
+  private temperatureC = 0;
+  /** active concentration at mid-step and ∂a/∂C, for each species with an activation law */
+  private readonly active: Record<string, Float64Array> = {};
+  private readonly slope: Record<string, Float64Array> = {};
+  /** each species' point-defect factor on D at every node for the coming step, or null (see setEnhancement) */
+  private readonly enhancement: Record<string, Float64Array | null> = {};
 
   constructor(private readonly plan: Plan, cells: number) {
-    for (const s of plan.species) this.previous[s.name] = new Float64Array(cells);
+    for (const s of plan.species) {
+      this.previous[s.name] = new Float64Array(cells);
+      this.enhancement[s.name] = null;
+      if (s.activation) {
+        this.active[s.name] = new Float64Array(cells);
+        this.slope[s.name] = new Float64Array(cells);
+      }
+    }
     this.net = new Float64Array(cells);
     this.nu = new Float64Array(cells);
     const { nx, nz } = plan.mesh;
@@ -73,6 +88,30 @@ export class CoupledDiffusivity {
 
   restart(): void {
     this.hasPrevious.clear();
+  }
+
+  /**
+   * The hook for point-defect enhancements (implant damage, oxidation): `factor[k]` multiplies
+   * the species' D at node k over the coming step, on top of every other model (charged
+   * defects, the Fair–Tsai tail, the active/inactive split). A caller with the interstitial
+   * supersaturation S at each node and the species' interstitial fraction f_I passes
+   * f_I·S + (1 − f_I)/S there, which enhances the interstitial-assisted part alone (and with
+   * vacancies in equilibrium with the interstitials, retards the vacancy part). The array is
+   * read, not copied, at each nodeBudgets(); null (the default) leaves D as it is. A species
+   * with a factor is stepped with variable D whatever its model (see isVariable).
+   */
+  setEnhancement(name: string, factor: Float64Array | null): void {
+    this.enhancement[name] = factor;
+  }
+
+  /** Whether a species' D varies from node to node in the coming step. */
+  isVariable(s: SpeciesPlan): boolean {
+    return s.model === 'charged-defect' || s.activation !== null || this.enhancement[s.name] !== null;
+  }
+
+  /** A species whose ν takes more than the charged-defect terms (kink, activation, an enhancement). */
+  private extended(s: SpeciesPlan): boolean {
+    return s.kink || s.activation !== null || this.enhancement[s.name] !== null;
   }
 
   /**
@@ -97,6 +136,7 @@ export class CoupledDiffusivity {
           temperatureC: number, theta: number): boolean {
     const { net, plan } = this;
     this.ni = intrinsicCarriersCm3(temperatureC);
+    this.temperatureC = temperatureC;
     this.fused = null;
     const substrate = plan.substrate.type === 'donor' ? plan.substrate.concentrationCm3 : -plan.substrate.concentrationCm3;
     let ringing = false;
@@ -104,7 +144,13 @@ export class CoupledDiffusivity {
       const s = present[k];
       const w = this.hasPrevious.has(s.name) ? theta : 0;
       const sign = s.type === 'donor' ? 1 : -1;
-      if (present.length === 1 && s.model === 'charged-defect') {
+      if (s.activation) {
+        // Only the active part counts in n and p: net from a = a(C) at mid-step.
+        const active = this.active[s.name];
+        extrapolate(active, concentration[s.name], this.previous[s.name], w);
+        activateField(active, this.slope[s.name], active, s.activation.limitCm3(temperatureC), s.activation.clusterSize);
+        addSigned(net, active, sign, k === 0, substrate);
+      } else if (present.length === 1 && s.model === 'charged-defect' && !this.extended(s)) {
         const b = budgets[k];
         const double = s.type === 'donor' ? b.double : 0;
         const ref = this.background(s, b);
@@ -130,7 +176,9 @@ export class CoupledDiffusivity {
   nodeBudgets(s: SpeciesPlan, b: ComponentDiffusivities): Float64Array {
     const { nx, nz } = this.plan.mesh;
     const { nu, uniform } = this;
-    if (this.fused !== s) {
+    if (this.extended(s)) {
+      this.extendedBudgets(s, b);
+    } else if (this.fused !== s) {
       const sign = s.type === 'donor' ? 1 : -1;
       // An acceptor sees p/ni, which is n/ni with the sign of the net doping turned over.
       const ref = this.background(s, b);
@@ -139,6 +187,52 @@ export class CoupledDiffusivity {
     }
     this.uniformCount = uniformColumns(nu, nx, nz, uniform.nu, UNIFORM_TOLERANCE * uniform.nu, uniform.rows, uniform.columns, this.deviation);
     return nu;
+  }
+
+  /**
+   * ν with the models beyond the charged-defect terms: the Fair–Tsai tail where n is below
+   * n_e (a kink exists when the highest n in the silicon is above it), then ∂a/∂C of the
+   * active/inactive split (the total diffuses with D(a)·∂a/∂C), then the point-defect factor.
+   * A species with the intrinsic model takes its D at n = ni everywhere. Uniform lines are
+   * marked afresh against the value at the last node.
+   */
+  private extendedBudgets(s: SpeciesPlan, b: ComponentDiffusivities): void {
+    const { nx } = this.plan.mesh;
+    const { nu, net, ni, uniform } = this;
+    const charged = s.model === 'charged-defect';
+    const sign = s.type === 'donor' ? 1 : -1;
+    const neutral = charged ? b.neutral : b.neutral + b.single + b.double;
+    const single = charged ? b.single : 0;
+    const double = charged && s.type === 'donor' ? b.double : 0;
+    const field = charged && s.fieldEnhancement;
+    nodeBudgets(nu, net, ni, sign, neutral, single, double, field, nx, -1, 0, uniform.rows, this.deviation);
+    if (s.kink) {
+      const ns = surfaceElectronsCm3(this.highest[s.name] ?? 0);
+      const factor = tailFactor(this.temperatureC, ns);
+      if (factor > 0) {
+        const ne = kinkElectronsCm3(this.temperatureC);
+        raiseBelow(nu, net, ne - (ni * ni) / ne, b.neutral + b.single * factor);
+      }
+    }
+    if (s.activation) scale(nu, this.slope[s.name]);
+    const enhancement = this.enhancement[s.name];
+    if (enhancement !== null) scale(nu, enhancement);
+    const ref = nu[nu.length - 1];
+    uniform.nu = ref;
+    markUniformRows(nu, nx, ref, UNIFORM_TOLERANCE * ref, uniform.rows, this.deviation);
+  }
+
+  /**
+   * The active concentration of each species with an activation law, at `temperatureC`, into
+   * `out` (for the field at the end of a run: the state quenched from the last heat).
+   */
+  static activeAt(s: SpeciesPlan, total: Float64Array, temperatureC: number, out: Float64Array): Float64Array {
+    if (!s.activation) {
+      out.set(total);
+      return out;
+    }
+    activateField(out, null, total, s.activation.limitCm3(temperatureC), s.activation.clusterSize);
+    return out;
   }
 
   /** u (see nodeBudgets) where the substrate alone sets n and p, for one species. */
@@ -190,6 +284,9 @@ function backgroundReach(background: number, ni: number, neutral: number, single
 
 // The hot loops of CoupledDiffusivity, each a function of its own over typed arrays.
 
+/** Factors for priming scale(). */
+const FACTORS = Float64Array.of(1, 0.5, 2, 1);
+
 /** The lowest and highest value addExtrapolated saw in C. */
 const EXTREMES = new Float64Array(2);
 
@@ -217,6 +314,60 @@ function primeHotLoops(): void {
     uniformColumns(nu, 2, 2, ref, limit, rows, columns, deviation);
     extrapolatedBudgets(nu, c, prev, 0.5, sign, 1.5e15, 7.5e18, 1.5e-3, 2.5e-3, 0.5e-3, field, 2, ref, limit, r % 2 === 0 ? 1e19 : -1, rows, deviation);
     uniformColumns(nu, 2, 2, ref, limit, rows, columns, deviation);
+    extrapolate(nu, c, prev, 0.5);
+    addSigned(net, nu, sign, r % 3 === 0, 1.5e15);
+    raiseBelow(nu, net, r % 2 === 0 ? 1e20 : -1, 3.5e-3);
+    scale(nu, FACTORS);
+    activateField(nu, prev, c, 1e20, 2 + (r % 3) * 5);
+    markUniformRows(nu, 2, ref, limit, rows, deviation);
+  }
+}
+
+/** out = max(C + w·(C − C_prev), 0); then C_prev = C. Leaves C's extremes in EXTREMES. */
+function extrapolate(out: Float64Array, c: Float64Array, prev: Float64Array, w: number): void {
+  let lowest = Infinity;
+  let highest = -Infinity;
+  for (let k = 0; k < c.length; k++) {
+    const ck = c[k];
+    const mid = ck + w * (ck - prev[k]);
+    out[k] = mid > 0 ? mid : 0;
+    prev[k] = ck;
+    lowest = ck < lowest ? ck : lowest;
+    highest = ck > highest ? ck : highest;
+  }
+  EXTREMES[0] = lowest;
+  EXTREMES[1] = highest;
+}
+
+/** net += sign·a, or with `first` net = base + sign·a. */
+function addSigned(net: Float64Array, a: Float64Array, sign: number, first: boolean, base: number): void {
+  for (let k = 0; k < a.length; k++) net[k] = (first ? base : net[k]) + sign * a[k];
+}
+
+/** ν = max(ν, tail) wherever the net doping is below `below` (the tail side of the kink). */
+function raiseBelow(nu: Float64Array, net: Float64Array, below: number, tail: number): void {
+  for (let k = 0; k < nu.length; k++) if (net[k] < below && nu[k] < tail) nu[k] = tail;
+}
+
+/** ν *= f, node by node. */
+function scale(nu: Float64Array, f: Float64Array): void {
+  for (let k = 0; k < nu.length; k++) nu[k] *= f[k];
+}
+
+/**
+ * Row by row: marks (and sets to exactly `ref`) each row whose ν is within `limit` of `ref`,
+ * and keeps each column's largest |ν − ref| in `deviation` for uniformColumns.
+ */
+function markUniformRows(nu: Float64Array, nx: number, ref: number, limit: number, rows: Uint8Array, deviation: Float64Array): void {
+  deviation.fill(0);
+  for (let j = 0, start = 0; start < nu.length; j++, start += nx) {
+    let worst = 0;
+    for (let k = start, i = 0; i < nx; k++, i++) {
+      const d = Math.abs(nu[k] - ref);
+      worst = Math.max(worst, d);
+      deviation[i] = Math.max(deviation[i], d);
+    }
+    rows[j] = markRow(nu, start, nx, worst, ref, limit);
   }
 }
 

@@ -6,8 +6,9 @@ import type { Simulation } from './simulate.ts';
 
 /**
  * The result field as ndarray views of shape [nz, nx] (z rows, x contiguous) over the
- * simulation's own buffers: net doping (donors − acceptors, substrate included) and each
- * diffused species, cm^-3.
+ * simulation's own buffers: net doping (donors − acceptors, substrate included, active parts
+ * only), each diffused species' total, then the active part of each species that has an
+ * inactive part somewhere (activation.ts), cm^-3.
  */
 export interface Field {
   mesh: Mesh;
@@ -26,18 +27,39 @@ export function buildField(sim: Simulation): Field {
   const donors = new Float64Array(cells);
   const acceptors = new Float64Array(cells);
   (substrate.type === 'donor' ? donors : acceptors).fill(substrate.concentrationCm3);
-  for (const s of species) addInto(s.type === 'donor' ? donors : acceptors, sim.concentration[s.name]);
+  // Only the active part of a species counts in the net doping (activation.ts).
+  for (const s of species) addInto(s.type === 'donor' ? donors : acceptors, sim.active[s.name] ?? sim.concentration[s.name]);
   const net = new Float64Array(cells);
   difference(net, donors, acceptors);
   const shape = [mesh.nz, mesh.nx];
   const layers: Record<string, NdArray<Float64Array>> = { net: ndarray(net, shape) };
   for (const s of species) layers[s.name] = ndarray(sim.concentration[s.name], shape);
-  return { mesh, names: ['net', ...species.map((s) => s.name)], layers, donors, acceptors };
+  const names = ['net', ...species.map((s) => s.name)];
+  for (const s of species) {
+    if (!sim.active[s.name] || !hasInactive(sim.concentration[s.name], sim.active[s.name])) continue;
+    names.push(activeLayerName(s.name));
+    layers[activeLayerName(s.name)] = ndarray(sim.active[s.name], shape);
+  }
+  return { mesh, names, layers, donors, acceptors };
+}
+
+/**
+ * The layer of a species' active part, after the totals (a space cannot be in a dopant's
+ * name, so it cannot meet one).
+ */
+export function activeLayerName(species: string): string {
+  return `${species} active`;
 }
 
 // The loops over every node, each a function of its own: compiled as part of buildField,
 // which a worker thread calls a few times a run, they took a recompilation and a deoptimisation
 // of the whole at nearly every call.
+
+/** Whether some node holds an inactive part (active below total by more than rounding). */
+function hasInactive(total: Float64Array, active: Float64Array): boolean {
+  for (let k = 0; k < total.length; k++) if (total[k] - active[k] > 1e-12 * total[k]) return true;
+  return false;
+}
 
 /** target += c */
 function addInto(target: Float64Array, c: Float64Array): void {

@@ -1,6 +1,7 @@
 import erfcinv from '@stdlib/math-base-special-erfcinv';
 import { diffusivityAt } from './dopants.ts';
 import { intrinsicCarriersCm3 } from './intrinsic.ts';
+import { kinkElectronsCm3, surfaceElectronsCm3, tailDiffusivityCm2PerS } from './phosphorus-kink.ts';
 import { buildMask, maskEdges, type Mask, type Window } from './mask.ts';
 import { buildMesh, gradedAxis, gradedAxisCells, type Mesh, type SpacingRule } from './mesh.ts';
 import type { PlanLimits, SpeciesPlan, StepPlan } from './plan-terms.ts';
@@ -8,7 +9,7 @@ import { overStep } from './thermal-budget.ts';
 import type { Recipe } from './recipe.ts';
 import { RecipeError } from './recipe-terms.ts';
 import { buildSpace3d, type Space3d } from './space3d.ts';
-import { concentrationFromDose } from './units.ts';
+import { concentrationFromDose, diffusivityToSolver } from './units.ts';
 
 /*
  * Mesh sizing: how deep the deepest profile reaches (a 1D estimate per source), and the
@@ -124,6 +125,20 @@ function sourceReach(st: StepPlan, sp: SpeciesPlan, steps: StepPlan[], thermalBu
     const tail = 2 * Math.sqrt(budget);
     reach = Math.max(reach, front + tail * erfcinv(Math.min(0.5, below)));
     depthNeed = Math.max(depthNeed, front + tail * erfcinv(Math.min(0.1, BOTTOM_FRACTION * below)));
+    if (sp.kink) {
+      // The Fair–Tsai tail, from the kink near n_e on with D_tail at the source's peak (while
+      // the peak lasts: an upper bound).
+      const ns = surfaceElectronsCm3(peak);
+      const tailBudget = steps.reduce((sum, x) => (x.index < st.index ? sum : sum + overStep(x, (t) => {
+        const d = tailDiffusivityCm2PerS(sp.dopant, t, ns);
+        return d === null ? 0 : diffusivityToSolver(d);
+      })), 0);
+      if (tailBudget > 0) {
+        const kinkBelow = background / kinkElectronsCm3(Number.isFinite(hottest) ? hottest : 1000);
+        reach = Math.max(reach, front + 2 * Math.sqrt(tailBudget) * erfcinv(Math.min(0.5, kinkBelow)));
+        depthNeed = Math.max(depthNeed, front + 2 * Math.sqrt(tailBudget) * erfcinv(Math.min(0.1, BOTTOM_FRACTION * kinkBelow)));
+      }
+    }
   }
   out.depthNeedUm = depthNeed;
   return reach;

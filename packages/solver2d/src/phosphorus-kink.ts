@@ -15,7 +15,9 @@ import { thermalEnergyEv } from './units.ts';
  *   conduction band) and the pairs come apart, releasing point defects.
  * - Tail, n below n_e: the excess point defects released at the kink make the tail diffuse
  *   at D_tail = D⁰ + D⁻·(n_s³ / (n_e²·ni))·[1 + exp(0.3 eV/kT)], uniform through the tail,
- *   with n_s the electron concentration at the surface (here: the highest in the silicon).
+ *   with n_s the electron concentration at the surface (here: at the highest phosphorus
+ *   concentration in the silicon, after the pairing of the surface region, see
+ *   surfaceElectronsCm3).
  *
  * The tail enhancement is a point-defect supersaturation of its own, named for its authors
  * and separate from the implant (TED) and oxidation (OED) enhancements.
@@ -28,6 +30,26 @@ export const KINK_PREFACTOR_CM3 = 4.65e21;
 export const KINK_ENERGY_EV = 0.39;
 /** The vacancy-pair dissociation term exp(0.3 eV/kT) of the tail (Fair and Tsai 1977; from memory). */
 export const TAIL_ENERGY_EV = 0.3;
+
+/**
+ * In the surface region part of the phosphorus is paired with vacancies, and the electron
+ * concentration n_s at a total C_s follows C_s = n_s + 2.04e-41·n_s³ (cm⁻³; Fair and Tsai
+ * 1977, from memory): about 2.3e20 at the 4.8e20 solubility of 850 °C.
+ */
+export const PAIRED_COEFFICIENT = 2.04e-41;
+
+/** n_s at a total phosphorus concentration C_s (the root of n + 2.04e-41·n³ = C_s), cm⁻³. */
+export function surfaceElectronsCm3(totalCm3: number): number {
+  if (!(totalCm3 > 0)) return 0;
+  // Newton on the increasing, convex cubic from C_s, which lies above the root.
+  let n = totalCm3;
+  for (let it = 0; it < 60; it++) {
+    const step = (n + PAIRED_COEFFICIENT * n * n * n - totalCm3) / (1 + 3 * PAIRED_COEFFICIENT * n * n);
+    n -= step;
+    if (Math.abs(step) <= 1e-14 * n) break;
+  }
+  return n;
+}
 
 /** Electron concentration at the kink, cm⁻³: about 1e20 near 900–1000 °C. */
 export function kinkElectronsCm3(temperatureC: number): number {

@@ -1,3 +1,4 @@
+import type { ActivationLaw } from './activation.ts';
 import type { Dopant, DopantType } from './dopants.ts';
 import type { ImplantSpec } from './implant.ts';
 import type { Ambient } from './oxidation.ts';
@@ -48,6 +49,10 @@ export interface SpeciesPlan {
   fieldEnhancement: boolean;
   /** solid solubility, cm^-3, at a temperature (°C), or a reason it cannot be given */
   solubility: (temperatureC: number) => number | string;
+  /** Fair–Tsai kink and tail (phosphorus-kink.ts) */
+  kink: boolean;
+  /** the active/inactive split (activation.ts), or null where all of the species is active */
+  activation: ActivationLaw | null;
 }
 
 export interface Numerics {

@@ -4,6 +4,7 @@ import type { Mesh } from './mesh.ts';
 import type { Space3d } from './space3d.ts';
 import { profileReach, sizeMesh } from './mesh-sizing.ts';
 import type { Recipe, Step } from './recipe.ts';
+import { modelsUsed, speciesPhysics, type ModelUse } from './physics-switches.ts';
 import { checkRecipe, resolveDopant } from './recipe-checks.ts';
 import { RecipeError } from './recipe-terms.ts';
 import { DEFAULT_LIMITS, type Numerics, type PlanLimits, type SpeciesPlan, type StepPlan } from './plan-terms.ts';
@@ -33,6 +34,8 @@ export interface Plan {
   numerics: Numerics;
   /** ∫D dt per species over the whole recipe (intrinsic D), µm² */
   thermalBudgetUm2: Record<string, number>;
+  /** the diffusion models the run uses, with their sources (for the report) */
+  models: ModelUse[];
   /** the 1D junction-depth estimate the mesh was sized from, µm */
   reachUm: number;
   limits: PlanLimits;
@@ -77,11 +80,12 @@ function resolveSpecies(recipe: Recipe): { species: SpeciesPlan[]; firstStep: Re
     if (step.dopant in firstStep) return;
     firstStep[step.dopant] = k;
     const charged = dopant.components.single !== undefined || dopant.components.double !== undefined;
+    const model = models[step.dopant] ?? recipe.diffusion?.model ?? (charged ? 'charged-defect' : 'intrinsic');
     species.push({
-      name: step.dopant, type: dopant.type, dopant,
-      model: models[step.dopant] ?? recipe.diffusion?.model ?? (charged ? 'charged-defect' : 'intrinsic'),
+      name: step.dopant, type: dopant.type, dopant, model,
       fieldEnhancement: recipe.diffusion?.fieldEnhancement ?? true,
       solubility: solubilityOf(recipe, step.dopant),
+      ...speciesPhysics(recipe, step.dopant, model),
     });
   });
   return { species, firstStep };
@@ -142,6 +146,7 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
   const { species, firstStep } = resolveSpecies(recipe);
   const physics = resolvePhysics(recipe, species.map((s) => s.name));
   const steps = planSteps(recipe, species, firstStep, physics);
+  const models = modelsUsed(recipe, species.map((s) => ({ name: s.name, model: s.model, physics: { kink: s.kink, activation: s.activation } })));
   const thermalBudgetUm2: Record<string, number> = {};
   for (const s of species) thermalBudgetUm2[s.name] = steps.reduce((sum, st) => sum + (st.budgetUm2[s.name] ?? 0), 0);
   const profile = profileReach(steps, species, thermalBudgetUm2, background);
@@ -151,7 +156,7 @@ export function planRecipe(recipe: Recipe, limits: PlanLimits = DEFAULT_LIMITS):
     substrate: { dopant: recipe.substrate.dopant, type: substrateDopant.type, concentrationCm3: background },
     species, steps, mesh, mask, space,
     numerics: { stepGrowth: recipe.numerics?.stepGrowth ?? DEFAULT_STEP_GROWTH, startupSteps: recipe.numerics?.startupSteps ?? 3 },
-    thermalBudgetUm2, reachUm: profile.reachUm, limits, warnings, physics,
+    thermalBudgetUm2, models, reachUm: profile.reachUm, limits, warnings, physics,
   };
 }
 

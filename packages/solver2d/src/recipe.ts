@@ -184,14 +184,19 @@ const diffusion = strict({
   fieldEnhancement: z.boolean({ error: explain('true or false') }).optional(),
 });
 
-/**
- * Models of the dopants' physics beyond Fick's law with D(T, n), each on by default where the
- * recipe's species and steps call for it, and each switched off by `false` to see how much it
- * contributes. `ted`: transient enhanced diffusion of B and P after an implant;
- * `oxidationEnhanced`: oxidation-enhanced (B, P) and -retarded (Sb) diffusion in an oxidising ambient.
- */
 const onOff = z.boolean({ error: explain('true or false') });
+
+/**
+ * A switch per high-concentration model, so that an engineer can see what each contributes.
+ * Left out, each is on where its species and step call for it: `phosphorusKink` (Fair–Tsai
+ * kink and tail) for phosphorus with the charged-defect model, `clustering` (active/inactive
+ * split) for arsenic and boron, `ted` (implant damage) and `oxidationEnhanced` (an oxidising
+ * ambient) for the species they enhance. Set to true for a recipe whose species it cannot
+ * apply to, a switch is refused.
+ */
 const physics = strict({
+  phosphorusKink: onOff.optional(),
+  clustering: onOff.optional(),
   ted: onOff.optional(),
   oxidationEnhanced: onOff.optional(),
 });

@@ -137,6 +137,11 @@ export const reportSchema = z.strictObject({
   }).optional(),
   junctions: z.array(z.strictObject({ polylinesUm: z.array(z.array(point)) })),
   doseCm2: counts,
+  activation: z.record(z.string(), z.strictObject({
+    totalDoseCm2: z.number(), activeDoseCm2: z.number(), peakActiveCm3: z.number(), peakTotalCm3: z.number(),
+  })).describe('per species: total and electrically active dose per unit of open window (cm^-2), and the peak active and total concentration (cm^-3)'),
+  models: z.array(z.strictObject({ model: z.string(), species: z.array(z.string()), source: z.string() }))
+    .describe('the diffusion models the run used, each with the species it applied to and its published source'),
   ledger: z.record(z.string(), ledgerEntry),
   thermalBudgetUm2: counts,
   steps: z.array(z.strictObject({

@@ -48,6 +48,12 @@ export interface Simulation {
   plan: Plan;
   /** concentration per species, cm^-3, row-major [z][x] on plan.mesh */
   concentration: Record<string, Float64Array>;
+  /**
+   * The active part of each species with an activation law (activation.ts), cm^-3, in
+   * equilibrium at the end of the last heat (the state a quench from it leaves); a species
+   * not listed is all active.
+   */
+  active: Record<string, Float64Array>;
   ledger: Record<string, LedgerEntry>;
   stepRecords: StepRecord[];
 }
@@ -85,7 +91,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
     concentration[s.name] = new Float64Array(cells);
     entered[s.name] = 0;
   }
-  const nonlinear = species.filter((s) => s.model === 'charged-defect');
+  const nonlinear = species.filter((s) => s.model === 'charged-defect' || s.activation !== null);
   const run: Run = {
     plan, options, peaks, concentration, entered, done: 0, total, present: [], presentIndex: [],
     stepper: keepLayout(new AdiStepper(mesh, mask)),
@@ -104,7 +110,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
     const issued = runStep(run, st, clocks[st.index], st.kind === 'predeposition' ? sp : null);
     stepRecords.push({ index: st.index, kind: st.kind, timeSteps: issued, seconds: st.seconds, enhancement: enhancementRecords(run) });
   }
-  return { plan, concentration, ledger: ledgerOf(run), stepRecords };
+  return { plan, concentration, active: activeParts(plan, concentration), ledger: ledgerOf(run), stepRecords };
 }
 
 /** What the phases of one simulate() share: the fields, the stepper and the progress count. */
@@ -241,7 +247,7 @@ function runStep(run: Run, st: StepPlan, planned: PlannedClock, held: SpeciesPla
       const c = concentration[s.name];
       const nu = budgets[n];
       const oxidising = perNode && enhancement!.excessOf(n) > 0;
-      if (coupled && s.model === 'charged-defect') {
+      if (coupled && coupled.isVariable(s)) {
         const node = coupled.nodeBudgets(s, nu);
         if (oxidising) entered[s.name] += stepper.stepVariable(c, enhancement!.scaleNodes(node, s.name, n), scheme, isHeld, surface, null);
         else entered[s.name] += stepper.stepVariable(c, node, scheme, isHeld, surface, coupled.uniformLines());
@@ -284,6 +290,18 @@ function enhancementRecords(run: Run): Record<string, StepEnhancementRecord> {
 }
 
 /** Dose that entered and dose in the silicon, per species, per unit of open window. */
+/** The active part of each species with an activation law, at the end of the recipe's last heat. */
+export function activeParts(plan: Plan, concentration: Record<string, Float64Array>): Record<string, Float64Array> {
+  const out: Record<string, Float64Array> = {};
+  let last: number | null = null;
+  for (const st of plan.steps) if (st.endC !== null && st.seconds > 0) last = st.endC;
+  for (const s of plan.species) {
+    if (!s.activation || last === null) continue;
+    out[s.name] = CoupledDiffusivity.activeAt(s, concentration[s.name], last, new Float64Array(concentration[s.name].length));
+  }
+  return out;
+}
+
 function ledgerOf(run: Run): Record<string, LedgerEntry> {
   const ledger: Record<string, LedgerEntry> = {};
   const area = openWidth(run.plan);

@@ -6,7 +6,7 @@ import { windowMean, type ImplantSpec } from './implant.ts';
 import { keepLayout } from './layouts.ts';
 import { openArea3d, type Mesh3d } from './mesh3d.ts';
 import { temperatureAt, type Plan, type SpeciesPlan } from './plan.ts';
-import { checkWork, planClocks, SolverError, StoppedError, type LedgerEntry, type PlannedClock, type SimulateOptions, type Simulation, type StepRecord } from './simulate.ts';
+import { activeParts, checkWork, planClocks, SolverError, StoppedError, type LedgerEntry, type PlannedClock, type SimulateOptions, type Simulation, type StepRecord } from './simulate.ts';
 import type { Space3d } from './space3d.ts';
 import { sourcePeaks, speedupOf } from './step-clock.ts';
 import { concentrationFromDose, doseFromConcentrationUm, UM_TO_CM } from './units.ts';
@@ -36,7 +36,7 @@ export function simulate3d(plan: Plan, space: Space3d, options: SimulateOptions 
   const stepper = keepLayout(new AdiStepper3d(mesh, mask));
   // The coupled diffusivity sees the field as nz rows of nx·ny nodes (its uniform "rows" are
   // the z planes where no dopant has arrived).
-  const nonlinear = species.some((s) => s.model === 'charged-defect');
+  const nonlinear = species.some((s) => s.model === 'charged-defect' || s.activation !== null);
   const coupled = nonlinear ? keepLayout(new CoupledDiffusivity({ ...plan, mesh: { ...plan.mesh, nx: mesh.nx * mesh.ny, nz: mesh.nz } }, cells)) : null;
   const present: SpeciesPlan[] = [];
   const stepRecords: StepRecord[] = [];
@@ -74,7 +74,7 @@ export function simulate3d(plan: Plan, space: Space3d, options: SimulateOptions 
       for (let n = 0; n < present.length; n++) {
         const s = present[n];
         const nu = budgets[n];
-        if (coupled && s.model === 'charged-defect') {
+        if (coupled && coupled.isVariable(s)) {
           entered[s.name] += stepper.stepVariable(concentration[s.name], coupled.nodeBudgets(s, nu), scheme, s === held);
         } else {
           entered[s.name] += stepper.step(concentration[s.name], nu.neutral + nu.single + nu.double, scheme, s === held);
@@ -103,7 +103,7 @@ export function simulate3d(plan: Plan, space: Space3d, options: SimulateOptions 
       relativeImbalance: inSilicon > 0 ? Math.abs(entered[s.name] - inSilicon) / inSilicon : 0,
     };
   }
-  return { plan, concentration, ledger, stepRecords };
+  return { plan, concentration, active: activeParts(plan, concentration), ledger, stepRecords };
 }
 
 /** The finest spacing along any axis, µm. */

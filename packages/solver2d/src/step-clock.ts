@@ -2,7 +2,8 @@ import { diffusivityAt, intrinsicDiffusivity } from './dopants.ts';
 import { integrate, temperatureAt, type Plan, type SpeciesPlan, type StepPlan } from './plan.ts';
 import { clockTimes, effectiveBudgetUm2 } from './point-defect-enhancement.ts';
 import { geometricSteps } from './schedule.ts';
-import { concentrationFromDose } from './units.ts';
+import { surfaceElectronsCm3, tailDiffusivityCm2PerS } from './phosphorus-kink.ts';
+import { concentrationFromDose, diffusivityToSolver } from './units.ts';
 
 /*
  * The step clock: how each process step is cut into time steps. Steps grow geometrically in
@@ -253,7 +254,11 @@ export function speedupOf(st: StepPlan, present: readonly SpeciesPlan[], peaks: 
     if (s.model !== 'charged-defect') continue;
     const t = Math.max(st.startC, st.endC!);
     const signed = s.type === 'donor' ? peaks[s.name] : -peaks[s.name];
-    speedup = Math.max(speedup, diffusivityAt(s.dopant, t, signed, s.fieldEnhancement) / intrinsicDiffusivity(s.dopant, t));
+    const intrinsic = intrinsicDiffusivity(s.dopant, t);
+    speedup = Math.max(speedup, diffusivityAt(s.dopant, t, signed, s.fieldEnhancement) / intrinsic);
+    // The Fair–Tsai tail can outrun the surface region: size the steps for it too.
+    const tail = s.kink ? tailDiffusivityCm2PerS(s.dopant, t, surfaceElectronsCm3(peaks[s.name])) : null;
+    if (tail !== null) speedup = Math.max(speedup, diffusivityToSolver(tail) / intrinsic);
   }
   return speedup;
 }
