@@ -120,7 +120,7 @@ describe('bad 3D input: one line naming the field, exit 2, nothing written', () 
     { name: 'no lengthUm', recipe: recipe({ rectangles: [[2, 2, 8, 5]] }, { widthUm: 12 }),
       line: /^edgewise: bad recipe: crossSection\.lengthUm: is required with mask\.rectangles/ },
     { name: 'a mesh above the limit', recipe: recipe({ rectangles: [[2, 2, 8, 5]] }), args: ['--max-mesh-points', '1000'],
-      line: /^edgewise: bad recipe: mesh: would need \d+ mesh points \(\d+ × \d+ × \d+, about \d+ MiB\), above the limit of 1000/ },
+      line: /^edgewise: bad recipe: mesh: would need \d+ mesh points \(\d+ × \d+ × \d+, about \d+ MiB at the peak\), above the limit of 1000/ },
   ];
   for (const c of cases) {
     it(c.name, () => {

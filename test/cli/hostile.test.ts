@@ -203,13 +203,14 @@ describe('work limits: refused before any field is allocated, saying what it wou
     const r = edgewise(['run', path, '--out', out, '--max-mesh-points', '1000']);
     expect(r.code, r.stderr).toBe(2);
     expect(r.stderr.trim().split('\n')).toHaveLength(1);
-    const m = /^edgewise: bad recipe: mesh: would need (\d+) mesh points \((\d+) × (\d+), about (\d+) MiB\), above the limit of 1000; lower mesh\.refine or raise the limit with --max-mesh-points N \(now 1000\)$/.exec(r.stderr.trim());
+    const m = /^edgewise: bad recipe: mesh: would need (\d+) mesh points \((\d+) × (\d+), about (\d+) MiB at the peak\), above the limit of 1000; lower mesh\.refine or raise the limit with --max-mesh-points N \(now 1000\)$/.exec(r.stderr.trim());
     expect(m, r.stderr).not.toBeNull();
     const [need, columns, rows, mib] = m!.slice(1).map(Number);
-    // The count is the product it states, above the limit; memory is 8 bytes × 8 fields a point, rounded up (plan.ts).
+    // The count is the product it states, above the limit; memory is the measured peak's fit,
+    // 75 MiB + 130 bytes a point, rounded up (plan-terms.ts, peakMemoryMiB).
     expect(need).toBe(columns * rows);
     expect(need).toBeGreaterThan(1000);
-    expect(mib).toBe(Math.ceil((need * 64) / 2 ** 20));
+    expect(mib).toBe(Math.ceil(75 + (need * 130) / 2 ** 20));
     expect(existsSync(out)).toBe(false);
   });
 

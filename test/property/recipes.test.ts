@@ -91,7 +91,7 @@ describe('generated recipes, valid and invalid', () => {
         if (e) throw new Error(`refused at ${points} points under a limit of ${limits.maxMeshPoints}: ${e.message}`);
         return;
       }
-      const m = /^would need (\d+) mesh points \((\d+) × (\d+), about \d+ MiB\), above the limit of (\d+); /.exec(e?.detail ?? '');
+      const m = /^would need (\d+) mesh points \((\d+) × (\d+), about \d+ MiB at the peak\), above the limit of (\d+); /.exec(e?.detail ?? '');
       if (!e || e.field !== 'mesh' || !m) throw new Error(`${points} points over ${limits.maxMeshPoints}: ${e ? e.message : 'accepted'}`);
       if (Number(m[1]) !== points || Number(m[2]) * Number(m[3]) !== points || Number(m[4]) !== limits.maxMeshPoints) {
         throw new Error(`the message's counts ${m.slice(1).join(', ')} are not the mesh's ${free.mesh.nx} × ${free.mesh.nz}`);

@@ -4,7 +4,7 @@ import { intrinsicCarriersCm3 } from './intrinsic.ts';
 import { kinkElectronsCm3, surfaceElectronsCm3, tailDiffusivityCm2PerS } from './phosphorus-kink.ts';
 import { buildMask, maskEdges, type Mask, type Window } from './mask.ts';
 import { buildMesh, gradedAxis, gradedAxisCells, type Mesh, type SpacingRule } from './mesh.ts';
-import type { PlanLimits, SpeciesPlan, StepPlan } from './plan-terms.ts';
+import { peakMemoryMiB, type PlanLimits, type SpeciesPlan, type StepPlan } from './plan-terms.ts';
 import { overStep } from './thermal-budget.ts';
 import type { Recipe } from './recipe.ts';
 import { RecipeError } from './recipe-terms.ts';
@@ -205,7 +205,7 @@ export function sizeMesh(recipe: Recipe, windows: readonly Window[], profile: Pr
   const zCells = gradedAxisCells(depthUm, [], [0], zRule) + 1;
   const points = xCells * zCells;
   if (points > limits.maxMeshPoints) {
-    throw new RecipeError('mesh', `would need ${points} mesh points (${xCells} × ${zCells}, about ${Math.ceil((points * 8 * 8) / 2 ** 20)} MiB), above the limit of ${limits.maxMeshPoints}; lower mesh.refine or raise the limit`);
+    throw new RecipeError('mesh', `would need ${points} mesh points (${xCells} × ${zCells}, about ${Math.ceil(peakMemoryMiB(points, 2))} MiB at the peak), above the limit of ${limits.maxMeshPoints}; lower mesh.refine or raise the limit`);
   }
   const mesh = buildMesh(xAxis(xRule), zAxis(zRule));
   const mask = buildMask(mesh, windows);

@@ -67,6 +67,17 @@ export interface PlanLimits {
   maxPointSteps: number;
 }
 
-/** 4e6 points is about 250 MiB of fields; 1e10 point-steps is a few minutes of solving. */
+/** 4e6 points is about 580 MiB at the peak (below); 1e10 point-steps is a few minutes of solving. */
 export const DEFAULT_LIMITS: PlanLimits = { maxMeshPoints: 4_000_000, maxPointSteps: 1e10 };
 
+
+/**
+ * Peak resident memory of a run, MiB, as measured (/usr/bin/time -v, fresh processes, one
+ * species, --error-solves 0): about 75 MiB of Node and code, plus per mesh point 130 bytes in 2D
+ * (fields, stepper scratch, analysis grids, the files' buffers: 62,500 points 78 MiB, 1e6 210,
+ * 2e6 353, 4e6 578) and 48 bytes in 3D (the solve's 16 and the analysis's 32: 3.0e6 points on
+ * the quarter of examples/corner-square.json, 213 MiB).
+ */
+export function peakMemoryMiB(points: number, dimensions: 2 | 3): number {
+  return 75 + (points * (dimensions === 2 ? 130 : 48)) / 2 ** 20;
+}

@@ -1,3 +1,4 @@
+import { peakMemoryMiB } from './plan-terms.ts';
 import { gradedAxis, gradedAxisCells, type SpacingRule } from './mesh.ts';
 import { buildMask3d, buildMesh3d, type Mask3d, type Mesh3d, type Rectangle } from './mesh3d.ts';
 import { RecipeError } from './recipe-terms.ts';
@@ -109,7 +110,7 @@ export function buildSpace3d(rectangles: readonly Rectangle[], widthUm: number, 
   const ny = gradedAxisCells(l, ys, ys, lateral);
   const points = nx * ny * zCount;
   if (points > maxMeshPoints) {
-    throw new RecipeError('mesh', `would need ${points} mesh points (${nx} × ${ny} × ${zCount}${mirror.x || mirror.y ? ' on the part left by the mirror planes' : ''}, about ${Math.ceil((points * 8 * 8) / 2 ** 20)} MiB), above the limit of ${maxMeshPoints}; lower mesh.refine or raise the limit`);
+    throw new RecipeError('mesh', `would need ${points} mesh points (${nx} × ${ny} × ${zCount}${mirror.x || mirror.y ? ' on the part left by the mirror planes' : ''}, about ${Math.ceil(peakMemoryMiB(points, 3))} MiB at the peak), above the limit of ${maxMeshPoints}; lower mesh.refine or raise the limit`);
   }
   const mesh = buildMesh3d(gradedAxis(w, xs, xs, lateral), gradedAxis(l, ys, ys, lateral), z());
   return { rectangles: [...rectangles], widthUm, lengthUm, mirrorX: mirror.x, mirrorY: mirror.y, mesh, mask: buildMask3d(mesh, part) };
