@@ -1,12 +1,12 @@
 import ndarray from 'ndarray';
-import type { Analysis, Report } from './analyze.ts';
+import { CORNERS, EDGES, type Analysis, type CornerName, type EdgeName, type RectangleReport, type Report } from './report.ts';
 import type { Field } from './field.ts';
-import { junctionIndicator, zeroContours, type NodeGrid, type Polyline } from './junction.ts';
+import { junctionIndicator, zeroContours, type NodeGrid } from './junction.ts';
 import { finestX, finestZ } from './mesh.ts';
 import type { Rectangle } from './mesh3d.ts';
 import { columnUnder, gridValueAt, reachAlong } from './reach3d.ts';
 import type { Simulation } from './simulate.ts';
-import { fold, type Space3d } from './space3d.ts';
+import { fold, fullAxes, unfoldAxis, type Space3d } from './space3d.ts';
 
 /*
  * The report of a 3D solve (mask.rectangles): per rectangle the junction depth under its
@@ -17,61 +17,8 @@ import { fold, type Space3d } from './space3d.ts';
  * substrate; in the full cross-section's coordinates, the mirrored parts unfolded.
  */
 
-export const EDGES = ['left', 'right', 'bottom', 'top'] as const;
-export const CORNERS = ['bottomLeft', 'bottomRight', 'topLeft', 'topRight'] as const;
-export type EdgeName = (typeof EDGES)[number];
-export type CornerName = (typeof CORNERS)[number];
-
-export interface RectangleReport {
-  x0Um: number;
-  y0Um: number;
-  x1Um: number;
-  y1Um: number;
-  /** shallowest junction below the rectangle's centre, µm; null if there is none */
-  junctionDepthUm: number | null;
-  /** reach of the surface junction beyond each edge at its middle, along the outward normal, µm;
-   *  null where that middle is not on the window's outline (an edge shared with a touching rectangle) */
-  edgeReachUm: Record<EdgeName, number | null>;
-  /** reach beyond each corner along the diagonal pointing away from the window, µm; null where
-   *  the corner is not a corner of the window's outline */
-  cornerReachUm: Record<CornerName, number | null>;
-  /** each corner of the outline: convex (the window fills one quadrant around it) or concave (three) */
-  cornerKind: Record<CornerName, 'convex' | 'concave' | null>;
-  /** each corner's reach over the mean of the rectangle's edge reaches */
-  cornerToEdgeRatio: Record<CornerName, number | null>;
-  errors?: {
-    junctionDepthUm: number | null;
-    edgeReachUm: Record<EdgeName, number | null>;
-    cornerReachUm: Record<CornerName, number | null>;
-  };
-}
-
-export interface PlanView {
-  /** every junction's outline at the surface, polylines in (x, y), µm */
-  outlines: { polylinesUm: Polyline[] }[];
-  /** mirror planes the solve used (x = W/2, y = L/2) */
-  mirrorX: boolean;
-  mirrorY: boolean;
-}
-
 function rounded(v: number, digits = 6): number {
   return Number(v.toPrecision(digits));
-}
-
-/** A cell-centred axis of the solved part, unfolded to the full length: the nodes (walls included) and each node's cell. */
-function unfoldAxis(centres: Float64Array, part: number, mirrored: boolean, full: number): { nodes: Float64Array; cell: Int32Array } {
-  const n = centres.length;
-  const nodes: number[] = [0, ...centres, part];
-  const cell: number[] = [0, ...Array.from({ length: n }, (_, i) => i), n - 1];
-  if (mirrored) {
-    for (let i = n - 1; i >= 0; i--) {
-      nodes.push(full - centres[i]);
-      cell.push(i);
-    }
-    nodes.push(full);
-    cell.push(0);
-  }
-  return { nodes: Float64Array.from(nodes), cell: Int32Array.from(cell) };
 }
 
 /** Plane k of `values` (on the solved part) as a node grid over the full plan view. */
@@ -88,33 +35,6 @@ export function unfoldedPlane(space: Space3d, values: Float64Array, k: number): 
     for (let i = 0; i < px; i++) out[j * px + i] = values[row + ax.cell[i]];
   }
   return { xs: ax.nodes, zs: ay.nodes, values: out, nx: px, nz: py };
-}
-
-/** The solved part's values unfolded to the full cross-section, [nz][ny][nx] with x contiguous, and its cell centres. */
-export function unfoldedVolume(space: Space3d, values: Float64Array, out: Float64Array, offset: number): void {
-  const { mesh } = space;
-  const ax = unfoldAxis(mesh.x, mesh.widthUm, space.mirrorX, space.widthUm);
-  const ay = unfoldAxis(mesh.y, mesh.lengthUm, space.mirrorY, space.lengthUm);
-  // Cell centres only: drop the wall nodes of the unfolded axes.
-  const cx = ax.cell.subarray(1, ax.cell.length - 1).filter((_, i) => !(space.mirrorX && i === mesh.nx));
-  const cy = ay.cell.subarray(1, ay.cell.length - 1).filter((_, j) => !(space.mirrorY && j === mesh.ny));
-  const nxf = cx.length;
-  const nyf = cy.length;
-  let o = offset;
-  for (let k = 0; k < mesh.nz; k++) {
-    for (let j = 0; j < nyf; j++) {
-      const row = (k * mesh.ny + cy[j]) * mesh.nx;
-      for (let i = 0; i < nxf; i++) out[o++] = values[row + cx[i]];
-    }
-  }
-}
-
-/** Cell centres of the full cross-section along x and y, µm. */
-export function fullAxes(space: Space3d): { x: Float64Array; y: Float64Array } {
-  const { mesh } = space;
-  const unfold = (c: Float64Array, mirrored: boolean, full: number) =>
-    mirrored ? Float64Array.from([...c, ...Array.from(c).reverse().map((v) => full - v)]) : c;
-  return { x: unfold(mesh.x, space.mirrorX, space.widthUm), y: unfold(mesh.y, space.mirrorY, space.lengthUm) };
 }
 
 /** Whether (x, y) lies inside one of the rectangles. */

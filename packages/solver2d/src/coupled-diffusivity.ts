@@ -505,3 +505,15 @@ function uniformColumns(nu: Float64Array, nx: number, nz: number, ref: number, l
   }
   return count;
 }
+
+/** The active part of each species with an activation law, at the end of the recipe's last heat. */
+export function activeParts(plan: Plan, concentration: Record<string, Float64Array>): Record<string, Float64Array> {
+  const out: Record<string, Float64Array> = {};
+  let last: number | null = null;
+  for (const st of plan.steps) if (st.endC !== null && st.seconds > 0) last = st.endC;
+  for (const s of plan.species) {
+    if (!s.activation || last === null) continue;
+    out[s.name] = CoupledDiffusivity.activeAt(s, concentration[s.name], last, new Float64Array(concentration[s.name].length));
+  }
+  return out;
+}

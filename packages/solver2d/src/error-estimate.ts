@@ -1,5 +1,5 @@
 import { analyze, type Analysis, type Report } from './analyze.ts';
-import { CORNERS, EDGES, type RectangleReport } from './analyze3d.ts';
+import { CORNERS, EDGES, type RectangleReport } from './report.ts';
 
 type RectangleErrors = NonNullable<RectangleReport['errors']>;
 import { DEFAULT_STEP_GROWTH, planRecipe, type Plan, type PlanLimits } from './plan.ts';

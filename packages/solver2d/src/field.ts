@@ -1,7 +1,6 @@
 import ndarray, { type NdArray } from 'ndarray';
-import { fullAxes, unfoldedVolume } from './analyze3d.ts';
 import type { Mesh } from './mesh.ts';
-import type { Space3d } from './space3d.ts';
+import { fullAxes, unfoldedVolume, type Space3d } from './space3d.ts';
 import type { Simulation } from './simulate.ts';
 
 /**

@@ -4,7 +4,8 @@ export { planRecipe, DEFAULT_LIMITS, type Plan, type PlanLimits, type StepPlan }
 export { simulate, SolverError, StoppedError, openWidth, type Simulation, type SimulateOptions, type Progress } from './simulate.ts';
 export { analyze, REPORT_SCHEMA_ID, type Report, type WindowReport, type Analysis } from './analyze.ts';
 export { buildField, stackLayers, type Field } from './field.ts';
-export { fullAxes, type RectangleReport, type PlanView } from './analyze3d.ts';
+export { fullAxes } from './space3d.ts';
+export type { RectangleReport, PlanView } from './report.ts';
 export { BUILTIN_DOPANTS, intrinsicDiffusivityCm2PerS, type Dopant } from './dopants.ts';
 export type { Mesh } from './mesh.ts';
 export type { Polyline, Point } from './junction.ts';

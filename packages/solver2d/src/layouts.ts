@@ -14,3 +14,14 @@ export function keepLayout<T extends object>(o: T, kind: unknown = o.constructor
   latest.set(kind, o);
   return o;
 }
+
+/**
+ * `items.map(f)`, built by push. An array that Array.prototype.map makes in optimised code
+ * has holey elements, one made by the interpreter packed ones: code compiled on the one
+ * meets the other with a "wrong map" and is thrown away (simulate, once per sweep worker).
+ */
+export function packedMap<T, U>(items: readonly T[], f: (item: T) => U): U[] {
+  const out: U[] = [];
+  for (const item of items) out.push(f(item));
+  return out;
+}

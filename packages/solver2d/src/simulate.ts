@@ -1,76 +1,15 @@
 import { AdiStepper } from './adi.ts';
-import { componentBudgets, CoupledDiffusivity, DAMPED_STEPS } from './coupled-diffusivity.ts';
-import { RecipeError } from './recipe-terms.ts';
+import { activeParts, componentBudgets, CoupledDiffusivity, DAMPED_STEPS } from './coupled-diffusivity.ts';
 import { addImplant } from './implant.ts';
 import { temperatureAt, type Plan, type SpeciesPlan, type StepPlan } from './plan.ts';
-import { keepLayout } from './layouts.ts';
+import { keepLayout, packedMap } from './layouts.ts';
 import { simulate3d } from './simulate3d.ts';
-import { finestX, finestZ } from './mesh.ts';
 import { DefectEnhancement, type StepEnhancementRecord } from './point-defect-enhancement.ts';
-import { isSealed, sourcePeaks, speedupOf, StepClock, type ProfileAges } from './step-clock.ts';
+import { checkWork, planClocks, sourcePeaks, speedupOf, type PlannedClock } from './step-clock.ts';
+import { SolverError, StoppedError, type LedgerEntry, type SimulateOptions, type Simulation, type StepRecord } from './simulation.ts';
 import { concentrationFromDose, doseFromConcentrationUm } from './units.ts';
 
-export interface Progress {
-  /** time steps done and planned over the whole recipe */
-  done: number;
-  total: number;
-  /** recipe step being run (0-based) */
-  step: number;
-  /** time within that step, s */
-  seconds: number;
-}
-
-export interface SimulateOptions {
-  onProgress?: (p: Progress) => void;
-  /** called between time steps; return true to abandon the run */
-  shouldStop?: () => boolean;
-}
-
-export interface LedgerEntry {
-  /** dose that entered through the windows (predeposition) or was placed there (film), cm^-2 of open window */
-  enteredCm2: number;
-  /** dose in the silicon at the end, cm^-2 of open window */
-  inSiliconCm2: number;
-  /** |entered − in silicon| / in silicon */
-  relativeImbalance: number;
-}
-
-export interface StepRecord {
-  index: number;
-  kind: string;
-  timeSteps: number;
-  seconds: number;
-  /** per species where TED or OED acted in this step: its time-averaged factors */
-  enhancement: Record<string, StepEnhancementRecord>;
-}
-
-export interface Simulation {
-  plan: Plan;
-  /** concentration per species, cm^-3, row-major [z][x] on plan.mesh */
-  concentration: Record<string, Float64Array>;
-  /**
-   * The active part of each species with an activation law (activation.ts), cm^-3, in
-   * equilibrium at the end of the last heat (the state a quench from it leaves); a species
-   * not listed is all active.
-   */
-  active: Record<string, Float64Array>;
-  ledger: Record<string, LedgerEntry>;
-  stepRecords: StepRecord[];
-}
-
-export class SolverError extends Error {
-  constructor(message: string) {
-    super(message);
-    this.name = 'SolverError';
-  }
-}
-
-export class StoppedError extends Error {
-  constructor() {
-    super('stopped');
-    this.name = 'StoppedError';
-  }
-}
+export { SolverError, StoppedError, type LedgerEntry, type Progress, type SimulateOptions, type Simulation, type StepRecord } from './simulation.ts';
 
 /** Runs the recipe's steps in order; every species present diffuses during every timed step. */
 export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation {
@@ -132,62 +71,6 @@ interface Run {
   /** time steps done, and the total planned (brought down as steps end early) */
   done: number;
   total: number;
-}
-
-export interface PlannedClock {
-  clock: StepClock;
-  /** time steps the clock gives at its starting speed-up (an upper bound) */
-  count: number;
-}
-
-/**
- * Each process step's clock, with the profile ages and start-up rules carried from step to
- * step; `hFine` is the finest mesh spacing (the first step's scale).
- */
-export function planClocks(plan: Plan, peaks: Record<string, number>, hFine = Math.min(finestX(plan.mesh), finestZ(plan.mesh))): PlannedClock[] {
-  const { species, steps } = plan;
-  const introduced = new Set<string>();
-  const ages: ProfileAges = { budgetSince: {}, sourceNu: {} };
-  // A sealed step (drive-in, anneal) right after a timed sealed step meets no discontinuity:
-  // the profile carries on and so does the boundary, so it takes no split-implicit start-up
-  // steps (first order: on the arsenic example with constant D, whose anneal follows its ramp,
-  // they held xj 0.10 % and the lateral reach 0.11 % from the step-converged values, 0.04 %
-  // without; the phosphorus well 0.03 % → 0.01 %, same steps).
-  let afterSealed = false;
-  // Arrays the time loop reads are pushed, not mapped (see packedMap).
-  return packedMap(steps, (st) => {
-    if (st.dopant) {
-      // A new source of a species starts its profile's age again; where an earlier source
-      // has not diffused since (two implants in a row), the younger of the two sets it.
-      const fresh = st.implant ? Math.min(st.implant.straggleUm, st.implant.lateralStraggleUm) ** 2 / 2 : 0;
-      const undiffused = introduced.has(st.dopant) && ages.budgetSince[st.dopant] === 0;
-      ages.sourceNu[st.dopant] = undiffused ? Math.min(ages.sourceNu[st.dopant], fresh) : fresh;
-      ages.budgetSince[st.dopant] = 0;
-      introduced.add(st.dopant);
-    }
-    const present = species.filter((s) => introduced.has(s.name));
-    const clock = keepLayout(new StepClock(plan, st, hFine, present, ages, speedupOf(st, present, peaks), afterSealed && isSealed(st),
-      steps.slice(st.index)));
-    // A source step (none is sealed) ends the run of sealed steps even when it takes no time.
-    if (st.dopant || st.seconds > 0) afterSealed = isSealed(st);
-    for (const s of present) ages.budgetSince[s.name] += st.budgetUm2[s.name] ?? 0;
-    return { clock, count: clock.count() };
-  });
-}
-
-/** Refuses a recipe whose time steps × mesh points exceed the plan's limit, with an estimate of the time. */
-export function checkWork(plan: Plan, total: number, cells: number): void {
-  const work = total * cells;
-  if (work <= plan.limits.maxPointSteps) return;
-  // A point-step of each species, on one core of the 2-core machine this was measured on at
-  // its slower speed: about 9 ns with constant D, 25 ns with the charged-defect model.
-  const perPointStep = plan.species.reduce((sum, s) => sum + (s.model === 'charged-defect' ? 25e-9 : 9e-9), 0);
-  const seconds = work * perPointStep;
-  const time = seconds < 90 ? `${Math.ceil(seconds)} s` : `${Math.ceil(seconds / 60)} min`;
-  const sci = (v: number) => v.toExponential(2).replace('e+', 'e');
-  throw new RecipeError('numerics', `would take ${total} time steps on ${cells} mesh points (${sci(work)} point-steps, ` +
-    `about ${time} on one core), above the limit of ${sci(plan.limits.maxPointSteps)}; ` +
-    'lower mesh.refine or raise numerics.stepGrowth, or raise the limit');
 }
 
 /** Places a film's dose or an implant's profile in the open windows (a predeposition's source is its held surface). */
@@ -290,18 +173,6 @@ function enhancementRecords(run: Run): Record<string, StepEnhancementRecord> {
 }
 
 /** Dose that entered and dose in the silicon, per species, per unit of open window. */
-/** The active part of each species with an activation law, at the end of the recipe's last heat. */
-export function activeParts(plan: Plan, concentration: Record<string, Float64Array>): Record<string, Float64Array> {
-  const out: Record<string, Float64Array> = {};
-  let last: number | null = null;
-  for (const st of plan.steps) if (st.endC !== null && st.seconds > 0) last = st.endC;
-  for (const s of plan.species) {
-    if (!s.activation || last === null) continue;
-    out[s.name] = CoupledDiffusivity.activeAt(s, concentration[s.name], last, new Float64Array(concentration[s.name].length));
-  }
-  return out;
-}
-
 function ledgerOf(run: Run): Record<string, LedgerEntry> {
   const ledger: Record<string, LedgerEntry> = {};
   const area = openWidth(run.plan);
@@ -315,17 +186,6 @@ function ledgerOf(run: Run): Record<string, LedgerEntry> {
     };
   }
   return ledger;
-}
-
-/**
- * `items.map(f)`, built by push. An array that Array.prototype.map makes in optimised code
- * has holey elements, one made by the interpreter packed ones: code compiled on the one
- * meets the other with a "wrong map" and is thrown away (simulate, once per sweep worker).
- */
-function packedMap<T, U>(items: readonly T[], f: (item: T) => U): U[] {
-  const out: U[] = [];
-  for (const item of items) out.push(f(item));
-  return out;
 }
 
 /** Total open window width, µm: doses are reported per unit of open area. */

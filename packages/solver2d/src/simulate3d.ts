@@ -1,12 +1,13 @@
 import erf from '@stdlib/math-base-special-erf';
 import { AdiStepper3d } from './adi3d.ts';
-import { componentBudgets, CoupledDiffusivity, DAMPED_STEPS } from './coupled-diffusivity.ts';
+import { activeParts, componentBudgets, CoupledDiffusivity, DAMPED_STEPS } from './coupled-diffusivity.ts';
 import type { ComponentDiffusivities } from './dopants.ts';
 import { windowMean, type ImplantSpec } from './implant.ts';
 import { keepLayout } from './layouts.ts';
 import { openArea3d, type Mesh3d } from './mesh3d.ts';
 import { temperatureAt, type Plan, type SpeciesPlan } from './plan.ts';
-import { activeParts, checkWork, planClocks, SolverError, StoppedError, type LedgerEntry, type PlannedClock, type SimulateOptions, type Simulation, type StepRecord } from './simulate.ts';
+import { SolverError, StoppedError, type LedgerEntry, type SimulateOptions, type Simulation, type StepRecord } from './simulation.ts';
+import { checkWork, planClocks, type PlannedClock } from './step-clock.ts';
 import type { Space3d } from './space3d.ts';
 import { sourcePeaks, speedupOf } from './step-clock.ts';
 import { concentrationFromDose, doseFromConcentrationUm, UM_TO_CM } from './units.ts';

@@ -122,3 +122,46 @@ export function fold(space: Space3d, x: number, y: number): { x: number; y: numb
   const fy = space.mirrorY && y > space.lengthUm / 2;
   return { x: fx ? space.widthUm - x : x, y: fy ? space.lengthUm - y : y, sx: fx ? -1 : 1, sy: fy ? -1 : 1 };
 }
+
+/** A cell-centred axis of the solved part, unfolded to the full length: the nodes (walls included) and each node's cell. */
+export function unfoldAxis(centres: Float64Array, part: number, mirrored: boolean, full: number): { nodes: Float64Array; cell: Int32Array } {
+  const n = centres.length;
+  const nodes: number[] = [0, ...centres, part];
+  const cell: number[] = [0, ...Array.from({ length: n }, (_, i) => i), n - 1];
+  if (mirrored) {
+    for (let i = n - 1; i >= 0; i--) {
+      nodes.push(full - centres[i]);
+      cell.push(i);
+    }
+    nodes.push(full);
+    cell.push(0);
+  }
+  return { nodes: Float64Array.from(nodes), cell: Int32Array.from(cell) };
+}
+
+/** The solved part's values unfolded to the full cross-section, [nz][ny][nx] with x contiguous, and its cell centres. */
+export function unfoldedVolume(space: Space3d, values: Float64Array, out: Float64Array, offset: number): void {
+  const { mesh } = space;
+  const ax = unfoldAxis(mesh.x, mesh.widthUm, space.mirrorX, space.widthUm);
+  const ay = unfoldAxis(mesh.y, mesh.lengthUm, space.mirrorY, space.lengthUm);
+  // Cell centres only: drop the wall nodes of the unfolded axes.
+  const cx = ax.cell.subarray(1, ax.cell.length - 1).filter((_, i) => !(space.mirrorX && i === mesh.nx));
+  const cy = ay.cell.subarray(1, ay.cell.length - 1).filter((_, j) => !(space.mirrorY && j === mesh.ny));
+  const nxf = cx.length;
+  const nyf = cy.length;
+  let o = offset;
+  for (let k = 0; k < mesh.nz; k++) {
+    for (let j = 0; j < nyf; j++) {
+      const row = (k * mesh.ny + cy[j]) * mesh.nx;
+      for (let i = 0; i < nxf; i++) out[o++] = values[row + cx[i]];
+    }
+  }
+}
+
+/** Cell centres of the full cross-section along x and y, µm. */
+export function fullAxes(space: Space3d): { x: Float64Array; y: Float64Array } {
+  const { mesh } = space;
+  const unfold = (c: Float64Array, mirrored: boolean, full: number) =>
+    mirrored ? Float64Array.from([...c, ...Array.from(c).reverse().map((v) => full - v)]) : c;
+  return { x: unfold(mesh.x, space.mirrorX, space.widthUm), y: unfold(mesh.y, space.mirrorY, space.lengthUm) };
+}
