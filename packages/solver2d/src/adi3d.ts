@@ -1,6 +1,7 @@
 import { uniformAxis } from './mesh.ts';
 import { buildMask3d, buildMesh3d, type Mask3d, type Mesh3d } from './mesh3d.ts';
 import { factorTridiagonal } from './tridiagonal.ts';
+import { PRIMING_CALLS, primeOnce } from './priming.ts';
 
 /**
  * Alternating-direction implicit stepper for ∂C/∂t = ∇·(D∇C) in 3D under a plan-view mask,
@@ -62,6 +63,30 @@ function cellCoefficients(c: Float64Array, d: Float64Array, lo: Float64Array, up
   }
 }
 
+/** Runs of a surface over the plane index: [start, end) and 1 where open. */
+interface SurfaceRuns {
+  start: Int32Array;
+  end: Int32Array;
+  open: Uint8Array;
+}
+
+/** The surface's runs of open and masked cells, in plane order. */
+function surfaceRuns(open: Uint8Array): SurfaceRuns {
+  const starts: number[] = [];
+  const ends: number[] = [];
+  const opens: number[] = [];
+  let start = 0;
+  for (let p = 1; p <= open.length; p++) {
+    if (p === open.length || open[p] !== open[start]) {
+      starts.push(start);
+      ends.push(p);
+      opens.push(open[start]);
+      start = p;
+    }
+  }
+  return { start: Int32Array.from(starts), end: Int32Array.from(ends), open: Uint8Array.from(opens) };
+}
+
 export class AdiStepper3d {
   readonly nx: number;
   readonly ny: number;
@@ -82,13 +107,9 @@ export class AdiStepper3d {
   private readonly fy: AxisFactor;
   private readonly fz: AxisFactor;
   private readonly fzHeld: AxisFactor;
-  /** runs of the surface mask over the plane index: [start, end) and 1 where open */
-  private readonly runStart: Int32Array;
-  private readonly runEnd: Int32Array;
-  private readonly runOpen: Uint8Array;
-  private readonly allStart: Int32Array;
-  private readonly allEnd: Int32Array;
-  private readonly noneOpen: Uint8Array;
+  /** runs of the surface mask over the plane index (held surface), and the whole plane as one sealed run */
+  private readonly maskRuns: SurfaceRuns;
+  private readonly sealedRuns: SurfaceRuns;
   private readonly lo: Float64Array;
   private readonly di: Float64Array;
   private readonly up: Float64Array;
@@ -96,7 +117,7 @@ export class AdiStepper3d {
   private readonly delta: Float64Array;
 
   constructor(mesh: Mesh3d, mask: Mask3d) {
-    primeKernels3d();
+    primeOnce(primeKernels3d);
     const { nx, ny, nz } = mesh;
     this.nx = nx;
     this.ny = ny;
@@ -111,10 +132,7 @@ export class AdiStepper3d {
     this.az = new Float64Array(nz);
     this.cz = new Float64Array(nz);
     const { z, dzVolume } = mesh;
-    for (let k = 0; k < nz; k++) {
-      if (k > 0) this.az[k] = 1 / ((z[k] - z[k - 1]) * dzVolume[k]);
-      if (k < nz - 1) this.cz[k] = 1 / ((z[k + 1] - z[k]) * dzVolume[k]);
-    }
+    cellCoefficients(z, dzVolume, this.az, this.cz);
     this.volumeX = mesh.dx;
     this.volumeY = mesh.dy;
     this.volumeZ = dzVolume;
@@ -123,24 +141,8 @@ export class AdiStepper3d {
     this.fy = axisFactor(ny);
     this.fz = axisFactor(nz);
     this.fzHeld = axisFactor(nz);
-    const starts: number[] = [];
-    const ends: number[] = [];
-    const opens: number[] = [];
-    let start = 0;
-    for (let p = 1; p <= this.plane; p++) {
-      if (p === this.plane || mask.open[p] !== mask.open[start]) {
-        starts.push(start);
-        ends.push(p);
-        opens.push(mask.open[start]);
-        start = p;
-      }
-    }
-    this.runStart = Int32Array.from(starts);
-    this.runEnd = Int32Array.from(ends);
-    this.runOpen = Uint8Array.from(opens);
-    this.allStart = Int32Array.of(0);
-    this.allEnd = Int32Array.of(this.plane);
-    this.noneOpen = Uint8Array.of(0);
+    this.maskRuns = surfaceRuns(mask.open);
+    this.sealedRuns = { start: Int32Array.of(0), end: Int32Array.of(this.plane), open: Uint8Array.of(0) };
     const n = Math.max(nx, ny, nz);
     this.lo = new Float64Array(n);
     this.di = new Float64Array(n);
@@ -308,9 +310,7 @@ export class AdiStepper3d {
 
   /** Plane k's step of the z forward elimination (runs of the mask pick the factor when held). */
   private zForward(d: Float64Array, k: number, held: boolean): void {
-    const starts = held ? this.runStart : this.allStart;
-    const ends = held ? this.runEnd : this.allEnd;
-    const kinds = held ? this.runOpen : this.noneOpen;
+    const { start: starts, end: ends, open: kinds } = held ? this.maskRuns : this.sealedRuns;
     const o = k * this.plane;
     for (let r = 0; r < starts.length; r++) {
       const f = kinds[r] === 1 ? this.fzHeld : this.fz;
@@ -322,9 +322,7 @@ export class AdiStepper3d {
   /** The z back substitution from the bottom plane up; with `add`, c += d plane by plane once final. */
   private zBackward(c: Float64Array, d: Float64Array, held: boolean, add: boolean): void {
     const { nz, plane } = this;
-    const starts = held ? this.runStart : this.allStart;
-    const ends = held ? this.runEnd : this.allEnd;
-    const kinds = held ? this.runOpen : this.noneOpen;
+    const { start: starts, end: ends, open: kinds } = held ? this.maskRuns : this.sealedRuns;
     for (let k = nz - 2; k >= 0; k--) {
       const o = k * plane;
       for (let r = 0; r < starts.length; r++) {
@@ -495,18 +493,13 @@ function maskedLine(d: Float64Array, base: number, stride: number, n: number, gP
   }
 }
 
-/** Calls of each path before real work (see PRIMING_CALLS in adi.ts). */
-const PRIMING_CALLS_3D = 32;
-let primed = false;
 
-/** Runs every path, held and sealed, in both schemes, on a tiny domain (9 × 7 × 6), once per thread. */
+/** Runs every path, held and sealed, in both schemes, on a tiny domain (9 × 7 × 6), once per thread (primeOnce, priming.ts). */
 function primeKernels3d(): void {
-  if (primed) return;
-  primed = true;
   const mesh = buildMesh3d(uniformAxis(0.9, 9), uniformAxis(0.7, 7), uniformAxis(0.5, 5));
   const stepper = new AdiStepper3d(mesh, buildMask3d(mesh, [[0.25, 0.15, 0.65, 0.45]]));
   const c = new Float64Array(mesh.nx * mesh.ny * mesh.nz);
-  for (let r = 0; r < PRIMING_CALLS_3D; r++) {
+  for (let r = 0; r < PRIMING_CALLS; r++) {
     for (const scheme of ['douglas-gunn', 'split-implicit'] as const) {
       stepper.holdSurface(c, 1.5e20);
       stepper.step(c, 1.5e-3, scheme, true);

@@ -134,19 +134,6 @@ export function analyze(sim: Simulation): Analysis {
   const doseCm2: Record<string, number> = {};
   for (const s of plan.species) doseCm2[s.name] = rounded(sim.ledger[s.name].inSiliconCm2);
 
-  const activation: Report['activation'] = {};
-  const area = openWidth(plan);
-  for (const s of plan.species) {
-    const total = sim.concentration[s.name];
-    const active = sim.active[s.name] ?? total;
-    activation[s.name] = {
-      totalDoseCm2: rounded(sim.ledger[s.name].inSiliconCm2),
-      activeDoseCm2: rounded(doseFromConcentrationUm(content(active, mesh.dx, mesh.dzVolume) / area)),
-      peakActiveCm3: rounded(largest(active)),
-      peakTotalCm3: rounded(largest(total)),
-    };
-  }
-
   const results = engineeringResults(sim, field, grid, reaches);
   const report: Report = {
     schema: REPORT_SCHEMA_ID,
@@ -159,26 +146,51 @@ export function analyze(sim: Simulation): Analysis {
     mobility: results.mobility,
     junctions: zeroContours(grid).map((line) => ({ polylinesUm: [line.map(([x, z]) => [rounded(x), rounded(z)] as [number, number])] })),
     doseCm2,
-    activation,
+    activation: activationOf(sim),
     models: plan.models.map((m) => ({ ...m, species: [...m.species] })),
     ledger: sim.ledger,
     thermalBudgetUm2: Object.fromEntries(Object.keys(plan.thermalBudgetUm2).map((k) =>
       [k, rounded(plan.steps.reduce((sum, st) => sum + (st.intrinsicBudgetUm2[k] ?? 0), 0))])),
-    steps: sim.stepRecords.map((r) => {
-      const st = plan.steps[r.index];
-      return {
-        index: r.index, kind: r.kind, temperatureC: st.temperatureC,
-        thermalBudgetUm2: Object.fromEntries(Object.entries(st.intrinsicBudgetUm2).map(([k, v]) => [k, rounded(v)])),
-        minutes: r.seconds / 60, timeSteps: r.timeSteps,
-        ...(st.ambient !== 'inert' ? { ambient: st.ambient, oxideUm: rounded(oxideAt(st, st.seconds), 4) } : {}),
-        ...(Object.keys(r.enhancement).length > 0
-          ? { enhancement: Object.fromEntries(Object.entries(r.enhancement).map(([k, e]) => [k, { ted: rounded(e.ted, 4), oxidation: rounded(e.oxidation, 4) }])) }
-          : {}),
-      };
-    }),
+    steps: stepReports(sim),
     field: { layers: field.names, shape: [field.names.length, mesh.nz, mesh.nx] },
     warnings,
   };
   if (recipe.electrical) report.electrical = electricalReport(mesh, field.layers.net.data, plan.mask.windows, { biasV: recipe.electrical.biasV }, report.warnings);
   return { report, field, grid };
+}
+
+/** Total and active dose and peak concentrations of each species, per unit of open window. */
+function activationOf(sim: Simulation): Report['activation'] {
+  const { plan } = sim;
+  const { mesh } = plan;
+  const activation: Report['activation'] = {};
+  const area = openWidth(plan);
+  for (const s of plan.species) {
+    const total = sim.concentration[s.name];
+    const active = sim.active[s.name] ?? total;
+    activation[s.name] = {
+      totalDoseCm2: rounded(sim.ledger[s.name].inSiliconCm2),
+      activeDoseCm2: rounded(doseFromConcentrationUm(content(active, mesh.dx, mesh.dzVolume) / area)),
+      peakActiveCm3: rounded(largest(active)),
+      peakTotalCm3: rounded(largest(total)),
+    };
+  }
+  return activation;
+}
+
+/** Each process step as it ran: intrinsic budgets, time steps, ambient and oxide, TED and OED factors. */
+function stepReports(sim: Simulation): Report['steps'] {
+  const { plan } = sim;
+  return sim.stepRecords.map((r) => {
+    const st = plan.steps[r.index];
+    return {
+      index: r.index, kind: r.kind, temperatureC: st.temperatureC,
+      thermalBudgetUm2: Object.fromEntries(Object.entries(st.intrinsicBudgetUm2).map(([k, v]) => [k, rounded(v)])),
+      minutes: r.seconds / 60, timeSteps: r.timeSteps,
+      ...(st.ambient !== 'inert' ? { ambient: st.ambient, oxideUm: rounded(oxideAt(st, st.seconds), 4) } : {}),
+      ...(Object.keys(r.enhancement).length > 0
+        ? { enhancement: Object.fromEntries(Object.entries(r.enhancement).map(([k, e]) => [k, { ted: rounded(e.ted, 4), oxidation: rounded(e.oxidation, 4) }])) }
+        : {}),
+    };
+  });
 }

@@ -154,21 +154,7 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
   removeStaleTemps(out, [`${stem}.csv`, `${stem}.json`]);
   const stale = removeStaleRunFolders(out, new Set(matrix.runs.map((r) => r.dir)), shard);
 
-  const rows = new Map<number, RunRow>();
-  const toDo: SweepRun[] = [];
-  let reused = 0;
-  for (const run of mine) {
-    const folder = folders.get(run.id)!;
-    removeStaleTemps(folder, null);
-    const windows = options.resume ? finishedRun(folder, run.recipeSha256, options.errorSolves) : null;
-    if (windows) {
-      rows.set(run.id, { id: run.id, values: run.values, windows, status: 'ok', error: null });
-      reused++;
-    } else {
-      rows.set(run.id, { id: run.id, values: run.values, windows: null, status: 'pending', error: null });
-      toDo.push(run);
-    }
-  }
+  const { rows, toDo, reused } = initialRows(mine, folders, options);
   const record = () => {
     const ordered = mine.map((r) => rows.get(r.id)!);
     const doc: SweepDocument = {
@@ -185,8 +171,6 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
 
   let failed = 0;
   let finished = 0;
-  let stopping: 'SIGINT' | 'SIGTERM' | null = null;
-  let abandoning = false;
   const warnings: string[] = [];
   if (stale.removed.length > 0 && !options.quiet) {
     process.stderr.write(`sweep: removed ${stale.removed.length} run folder${stale.removed.length === 1 ? '' : 's'} of an earlier sweep that this one does not make: ${someNames(stale.removed)}\n`);
@@ -203,23 +187,7 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
   const say = (line: string) => {
     if (!options.quiet) process.stderr.write(`${process.stderr.isTTY ? '\r\x1b[K' : ''}${line}\n`);
   };
-  const onInt = () => {
-    if (stopping === null) {
-      stopping = 'SIGINT';
-      say('sweep: stopping — no new runs start; the running ones finish (Ctrl-C again to abandon them)');
-    } else if (!abandoning) {
-      abandoning = true;
-      pool.abandon();
-      say('sweep: abandoning the running runs');
-    }
-  };
-  const onTerm = () => {
-    stopping ??= 'SIGTERM';
-    abandoning = true;
-    pool.abandon();
-  };
-  process.on('SIGINT', onInt);
-  process.on('SIGTERM', onTerm);
+  const signals = new StopSignals(pool, say);
   const ticker = setInterval(report, 250);
   ticker.unref();
 
@@ -229,7 +197,7 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
   let lastRecord = performance.now();
   let next = 0;
   const lane = async (currentPool: WorkerPool) => {
-    while (stopping === null && next < toDo.length) {
+    while (signals.stopping === null && next < toDo.length) {
       const run = toDo[next++];
       const recipe = recipeForRun(matrix.base, matrix.parameters, run.values);
       const row = rows.get(run.id)!;
@@ -239,9 +207,9 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
         row.status = 'ok';
         for (const w of outcome.warnings) warnings.push(`run ${run.id}: ${w}`);
       } catch (e) {
-        if (abandoning && (e as Error).name === 'StoppedError') {
+        if (signals.abandoning && (e as Error).name === 'StoppedError') {
           row.status = 'abandoned';
-          row.error = `abandoned: the sweep was stopped by ${stopping}`;
+          row.error = `abandoned: the sweep was stopped by ${signals.stopping}`;
         } else {
           row.status = 'failed';
           row.error = errorText(e);
@@ -260,14 +228,75 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
     await Promise.all(Array.from({ length: pool.size }, () => lane(pool)));
   } finally {
     clearInterval(ticker);
-    process.off('SIGINT', onInt);
-    process.off('SIGTERM', onTerm);
+    signals.release();
     progress.done();
     await pool.close();
   }
   const written = record();
 
   const ordered = mine.map((r) => rows.get(r.id)!);
+  return closeSweep(matrix, options, ordered, { written, stem, reused, failed, started, stopping: signals.stopping, warnings, workers: pool.size });
+}
+
+
+/** Ctrl-C stops new runs and a second one abandons the running ones; SIGTERM abandons at once. */
+class StopSignals {
+  stopping: 'SIGINT' | 'SIGTERM' | null = null;
+  abandoning = false;
+  private readonly onInt = () => {
+    if (this.stopping === null) {
+      this.stopping = 'SIGINT';
+      this.say('sweep: stopping — no new runs start; the running ones finish (Ctrl-C again to abandon them)');
+    } else if (!this.abandoning) {
+      this.abandoning = true;
+      this.pool.abandon();
+      this.say('sweep: abandoning the running runs');
+    }
+  };
+  private readonly onTerm = () => {
+    this.stopping ??= 'SIGTERM';
+    this.abandoning = true;
+    this.pool.abandon();
+  };
+
+  constructor(private readonly pool: WorkerPool, private readonly say: (line: string) => void) {
+    process.on('SIGINT', this.onInt);
+    process.on('SIGTERM', this.onTerm);
+  }
+
+  release(): void {
+    process.off('SIGINT', this.onInt);
+    process.off('SIGTERM', this.onTerm);
+  }
+}
+
+/** Each run of this shard as a row: `ok` where --resume finds it finished, else pending (and to do). */
+function initialRows(mine: SweepRun[], folders: Map<number, string>, options: SweepOptions): { rows: Map<number, RunRow>; toDo: SweepRun[]; reused: number } {
+  const rows = new Map<number, RunRow>();
+  const toDo: SweepRun[] = [];
+  let reused = 0;
+  for (const run of mine) {
+    const folder = folders.get(run.id)!;
+    removeStaleTemps(folder, null);
+    const windows = options.resume ? finishedRun(folder, run.recipeSha256, options.errorSolves) : null;
+    if (windows) {
+      rows.set(run.id, { id: run.id, values: run.values, windows, status: 'ok', error: null });
+      reused++;
+    } else {
+      rows.set(run.id, { id: run.id, values: run.values, windows: null, status: 'pending', error: null });
+      toDo.push(run);
+    }
+  }
+  return { rows, toDo, reused };
+}
+
+/** How a sweep ended: the table, the failures and a summary; returns the exit code. */
+function closeSweep(matrix: SweepMatrix, options: SweepOptions, ordered: RunRow[], end: {
+  written: string[]; stem: string; reused: number; failed: number; started: number;
+  stopping: 'SIGINT' | 'SIGTERM' | null; warnings: string[]; workers: number;
+}): number {
+  const { out, shard } = options;
+  const { written, stem, reused, failed, started, stopping, warnings } = end;
   const count = (s: RunRow['status']) => ordered.filter((r) => r.status === s).length;
   const seconds = (performance.now() - started) / 1000;
   process.stdout.write(`${summaryTable(matrix, ordered)}\n`);
@@ -279,7 +308,7 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
     }
     const shardNote = shard ? ` (shard ${shard.index}/${shard.count} of ${matrix.runs.length})` : '';
     process.stderr.write(`sweep: ${ordered.length} runs${shardNote}: ${count('ok')} ok${reused ? ` (${reused} already finished)` : ''}, ${failed} failed, ` +
-      `${count('abandoned')} abandoned, ${count('pending')} not run; ${seconds.toFixed(1)} s with ${pool.size} worker${pool.size === 1 ? '' : 's'}\n`);
+      `${count('abandoned')} abandoned, ${count('pending')} not run; ${seconds.toFixed(1)} s with ${end.workers} worker${end.workers === 1 ? '' : 's'}\n`);
   }
   if (stopping) {
     process.stderr.write(`sweep: stopped by ${stopping}; run the same command with --resume to finish it\n`);
