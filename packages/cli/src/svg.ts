@@ -1,4 +1,4 @@
-import type { Report } from '@edgewise/solver2d';
+import { maskedStretches, type Report } from '@edgewise/solver2d';
 
 /**
  * contour.svg: the cross-section drawn to scale (one µm is the same length across and down),
@@ -55,15 +55,7 @@ export function contourSvg(report: Report): string {
   out.push(`<rect x="${px(X(0))}" y="${px(Z(0))}" width="${px(w)}" height="${px(h)}" fill="#f4f1ea" stroke="#555" stroke-width="1"/>`);
 
   // The mask: everything on the surface that is not a window.
-  const open = [...report.windows].sort((a, b) => a.x0Um - b.x0Um);
-  let from = 0;
-  const masked: [number, number][] = [];
-  for (const win of open) {
-    if (win.x0Um > from) masked.push([from, win.x0Um]);
-    from = Math.max(from, win.x1Um);
-  }
-  if (from < widthUm) masked.push([from, widthUm]);
-  for (const [a, b] of masked) {
+  for (const [a, b] of maskedStretches(report.windows.map((w) => [w.x0Um, w.x1Um] as const), widthUm)) {
     out.push(`<rect class="mask" x="${px(X(a))}" y="${px(Z(0) - MASK_PX)}" width="${px((b - a) * scale)}" height="${MASK_PX}" fill="#3b3b3b"/>`);
   }
   report.windows.forEach((win, k) => {

@@ -29,6 +29,19 @@ export function windowOrder(windows: readonly Window[]): number[] {
   return windows.map((_, k) => k).sort((p, q) => windows[p][0] - windows[q][0]);
 }
 
+/** Masked stretches of the surface, in x order: the complement of the windows in [0, width], µm. */
+export function maskedStretches(windows: readonly Window[], widthUm: number): [number, number][] {
+  const out: [number, number][] = [];
+  let from = 0;
+  for (const k of windowOrder(windows)) {
+    const [x0, x1] = windows[k];
+    if (x0 > from) out.push([from, x0]);
+    from = Math.max(from, x1);
+  }
+  if (from < widthUm) out.push([from, widthUm]);
+  return out;
+}
+
 /** Neighbouring windows in x order, as index pairs into `windows`. */
 function neighbourPairs(windows: readonly Window[]): [number, number][] {
   const order = windowOrder(windows);

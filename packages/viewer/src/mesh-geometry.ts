@@ -8,6 +8,7 @@
  * Vertices sit at the nodes, (nx + 2) × nz of them, row by row from the surface down;
  * world coordinates are (x, −z) in µm, so depth points down the screen.
  */
+import { maskedStretches } from '@edgewise/solver2d';
 
 export interface NodeGrid {
   /** node x positions with the walls added, µm (nx + 2) */
@@ -91,15 +92,7 @@ export function meshLinePositions(grid: NodeGrid): Float32Array {
 
 /** Masked stretches of the surface: the complement of the windows in [0, width]. */
 export function maskedIntervals(windows: readonly { x0Um: number; x1Um: number }[], widthUm: number): [number, number][] {
-  const open = [...windows].map((w) => [w.x0Um, w.x1Um] as [number, number]).sort((a, b) => a[0] - b[0]);
-  const out: [number, number][] = [];
-  let from = 0;
-  for (const [x0, x1] of open) {
-    if (x0 > from) out.push([from, x0]);
-    from = Math.max(from, x1);
-  }
-  if (from < widthUm) out.push([from, widthUm]);
-  return out;
+  return maskedStretches(windows.map((w) => [w.x0Um, w.x1Um] as const), widthUm);
 }
 
 /**

@@ -1,4 +1,4 @@
-import { parseRecipe, planRecipe, RecipeError, type PlanLimits, type Recipe } from '@edgewise/solver2d';
+import { parseRecipe, planRecipe, RecipeError, windowOrder, type PlanLimits, type Recipe } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
 import { withLimitHint } from '../limits.ts';
 import { checkNumericPath, formatPath, parsePath, setAt, type Segment } from './fields.ts';
@@ -109,7 +109,7 @@ function resizeWindows(recipe: Record<string, unknown>, width: number, label: st
       why = `mask.windows[${k}] is centred at ${tidy(c)} µm in a ${sectionWidth} µm cross-section`;
     }
   });
-  const order = centres.map((c, k) => ({ c, k })).sort((a, b) => a.c - b.c);
+  const order = windowOrder(mask.windows).map((k) => ({ c: centres[k], k }));
   let gap = Infinity;
   let gapWhy = '';
   for (let m = 1; m < order.length; m++) {
