@@ -20,6 +20,18 @@ function exactReach(c: ImplantCase, edge: number): { reachUm: number; depthUm: n
   return { reachUm: edge - x, depthUm: zStar };
 }
 
+/** The implant annealed in a 5 µm cross-section, solved, and its exact separable solution. */
+function annealedImplant(implant: { doseCm2: number; projectedRangeUm: number; straggleUm: number; lateralStraggleUm: number },
+                         window: [number, number], anneal: { temperatureC: number; minutes: number }) {
+  const run = solve(implantRecipe({ widthUm: 5, windows: [window], background: NB, implant, anneals: [anneal] }));
+  const dt = arrheniusUm2PerS(TEST_DOPANT.D0Cm2PerS, TEST_DOPANT.EaEv, anneal.temperatureC) * anneal.minutes * 60;
+  const exact: ImplantCase = {
+    q: implant.doseCm2, rp: implant.projectedRangeUm, straggle: implant.straggleUm, lateralStraggle: implant.lateralStraggleUm,
+    dt, x0: window[0], x1: window[1], width: 5, depth: run.plan.mesh.depthUm,
+  };
+  return { run, exact };
+}
+
 // An implant peaked below the surface, annealed with constant D (the test dopant has no
 // charged terms): its junction bulges sideways below the surface, beyond the surface lateral.
 describe('lateral reach of an annealed implant, against the exact separable solution', () => {
@@ -27,12 +39,7 @@ describe('lateral reach of an annealed implant, against the exact separable solu
   const implant = { doseCm2: 3e14, projectedRangeUm: 0.2, straggleUm: 0.04, lateralStraggleUm: 0.04 };
   const window: [number, number] = [1.5, 3.5];
   const anneal = { temperatureC: 1000, minutes: 20 };
-  const run = solve(implantRecipe({ widthUm: 5, windows: [window], background: NB, implant, anneals: [anneal] }));
-  const dt = arrheniusUm2PerS(TEST_DOPANT.D0Cm2PerS, TEST_DOPANT.EaEv, anneal.temperatureC) * anneal.minutes * 60;
-  const exact: ImplantCase = {
-    q: implant.doseCm2, rp: implant.projectedRangeUm, straggle: implant.straggleUm, lateralStraggle: implant.lateralStraggleUm,
-    dt, x0: window[0], x1: window[1], width: 5, depth: run.plan.mesh.depthUm,
-  };
+  const { run, exact } = annealedImplant(implant, window, anneal);
   const truth = exactReach(exact, window[0]);
   const surface = window[0] - bisect((x) => implantField(exact, x, 0) - NB, 0, window[0]);
   const w = run.report.windows[0];
@@ -83,12 +90,7 @@ describe('lateral reach of a buried implant', () => {
   const implant = { doseCm2: 1e14, projectedRangeUm: 0.4, straggleUm: 0.08, lateralStraggleUm: 0.08 };
   const window: [number, number] = [1.5, 3.5];
   const anneal = { temperatureC: 950, minutes: 20 };
-  const run = solve(implantRecipe({ widthUm: 5, windows: [window], background: NB, implant, anneals: [anneal] }));
-  const dt = arrheniusUm2PerS(TEST_DOPANT.D0Cm2PerS, TEST_DOPANT.EaEv, anneal.temperatureC) * anneal.minutes * 60;
-  const exact: ImplantCase = {
-    q: implant.doseCm2, rp: implant.projectedRangeUm, straggle: implant.straggleUm, lateralStraggle: implant.lateralStraggleUm,
-    dt, x0: window[0], x1: window[1], width: 5, depth: run.plan.mesh.depthUm,
-  };
+  const { run, exact } = annealedImplant(implant, window, anneal);
   const truth = exactReach(exact, window[0]);
   const w = run.report.windows[0];
   it('has no surface lateral, and its reach within 0.3 % of the layer thickness of the exact one, at its depth within 2 %', () => {

@@ -15,7 +15,24 @@ export function temporaryName(path: string): string {
   return `${path}.${HOST}.${process.pid}.${Math.random().toString(36).slice(2)}.tmp`;
 }
 
-const TEMPORARY = /\.([A-Za-z0-9-]+)\.(\d+)\.[0-9a-z]+\.tmp$/;
+/** A temporary name as temporaryName makes it: the writer's host and pid are groups 1 and 2. */
+export const TEMPORARY = /\.([A-Za-z0-9-]+)\.(\d+)\.[0-9a-z]+\.tmp$/;
+
+/** Our temporaries in `folder`, with their writer's host and pid; none where it cannot be read. */
+export function temporariesIn(folder: string): { name: string; host: string; pid: number }[] {
+  let names: string[];
+  try {
+    names = readdirSync(folder);
+  } catch {
+    return [];
+  }
+  const out: { name: string; host: string; pid: number }[] = [];
+  for (const name of names) {
+    const m = TEMPORARY.exec(name);
+    if (m) out.push({ name, host: m[1], pid: Number(m[2]) });
+  }
+  return out;
+}
 
 /** Folders whose stale temporaries this process has already removed. */
 const swept = new Set<string>();
@@ -39,15 +56,8 @@ export function removeStaleTemporaries(folder: string): void {
   const key = resolve(folder);
   if (swept.has(key)) return;
   swept.add(key);
-  let names: string[];
-  try {
-    names = readdirSync(folder);
-  } catch {
-    return;
-  }
-  for (const name of names) {
-    const m = TEMPORARY.exec(name);
-    if (!m || m[1] !== HOST || Number(m[2]) === process.pid || alive(Number(m[2]))) continue;
+  for (const { name, host, pid } of temporariesIn(folder)) {
+    if (host !== HOST || pid === process.pid || alive(pid)) continue;
     try {
       rmSync(join(folder, name), { force: true });
     } catch {

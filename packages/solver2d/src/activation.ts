@@ -1,4 +1,4 @@
-import { SOLUBILITY_SOURCE, SOLUBILITY_TABLE } from './solubility.ts';
+import { extrapolatedSolubility, SOLUBILITY_SOURCE, SOLUBILITY_TABLE } from './solubility.ts';
 import { thermalEnergyEv } from './units.ts';
 
 /**
@@ -55,20 +55,6 @@ const BORON: ActivationLaw = {
 };
 
 export const ACTIVATION_LAWS: Readonly<Record<string, ActivationLaw>> = { As: ARSENIC, B: BORON };
-
-/**
- * Log-linear in 1/T through the table, carried on along its end segments outside it: an
- * anneal at 700 °C still needs a limit (the extrapolation is ours, no source).
- */
-export function extrapolatedSolubility(table: readonly (readonly [number, number])[], temperatureC: number): number {
-  let k = 0;
-  while (k + 2 < table.length && table[k + 1][0] < temperatureC) k++;
-  const [t0, c0] = table[k];
-  const [t1, c1] = table[k + 1];
-  const inv = (t: number) => 1 / (t + 273.15);
-  const f = (inv(temperatureC) - inv(t0)) / (inv(t1) - inv(t0));
-  return Math.exp(Math.log(c0) + f * (Math.log(c1) - Math.log(c0)));
-}
 
 /**
  * Below SKIP_FRACTION·a_c^… the clustered share (a/a_c)^(m−1) is under 1e-12 and a = C is

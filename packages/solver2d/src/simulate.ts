@@ -6,7 +6,7 @@ import { keepLayout, packedMap } from './layouts.ts';
 import { simulate3d } from './simulate3d.ts';
 import { DefectEnhancement, type StepEnhancementRecord } from './point-defect-enhancement.ts';
 import { checkWork, planClocks, sourcePeaks, speedupOf, type PlannedClock } from './step-clock.ts';
-import { SolverError, StoppedError, type LedgerEntry, type SimulateOptions, type Simulation, type StepRecord } from './simulation.ts';
+import { emptyFields, holdSource, SolverError, StoppedError, type LedgerEntry, type SimulateOptions, type Simulation, type StepRecord } from './simulation.ts';
 import { concentrationFromDose, doseFromConcentrationUm } from './units.ts';
 
 export { SolverError, StoppedError, type LedgerEntry, type Progress, type SimulateOptions, type Simulation, type StepRecord } from './simulation.ts';
@@ -24,12 +24,7 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   const total = clocks.reduce((n, c) => n + c.count, 0);
   // Check the work before allocating any field.
   checkWork(plan, total, cells);
-  const concentration: Record<string, Float64Array> = {};
-  const entered: Record<string, number> = {};
-  for (const s of species) {
-    concentration[s.name] = new Float64Array(cells);
-    entered[s.name] = 0;
-  }
+  const { concentration, entered } = emptyFields(species, cells);
   const nonlinear = species.filter((s) => s.model === 'charged-defect' || s.activation !== null);
   const run: Run = {
     plan, options, peaks, concentration, entered, done: 0, total, present: [], presentIndex: [],
@@ -109,11 +104,7 @@ function runStep(run: Run, st: StepPlan, planned: PlannedClock, held: SpeciesPla
     const { t0, t1 } = timeStep;
     const dt = t1 - t0;
     const midC = temperatureAt(st, 0.5 * (t0 + t1));
-    let surface = 0;
-    if (held) {
-      surface = st.surfaceAtSolubility ? (held.solubility(midC) as number) : st.surfaceConcentrationCm3!;
-      entered[held.name] += stepper.holdSurface(concentration[held.name], surface);
-    }
+    const surface = held ? holdSource(st, held, midC, stepper, concentration, entered) : 0;
     // A concentration-dependent D can feed Peaceman–Rachford's undamped stiff modes (see
     // DAMPED_STEPS): where the field has begun to ring, the next steps are split implicit.
     const budgets = packedMap(present, (s) => componentBudgets(st, s, t0, t1));

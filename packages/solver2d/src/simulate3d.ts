@@ -6,7 +6,7 @@ import { windowMean, type ImplantSpec } from './implant.ts';
 import { keepLayout } from './layouts.ts';
 import { openArea3d, type Mesh3d } from './mesh3d.ts';
 import { temperatureAt, type Plan, type SpeciesPlan } from './plan.ts';
-import { SolverError, StoppedError, type LedgerEntry, type SimulateOptions, type Simulation, type StepRecord } from './simulation.ts';
+import { emptyFields, holdSource, SolverError, StoppedError, type LedgerEntry, type SimulateOptions, type Simulation, type StepRecord } from './simulation.ts';
 import { checkWork, planClocks, type PlannedClock } from './step-clock.ts';
 import type { Space3d } from './space3d.ts';
 import { sourcePeaks, speedupOf } from './step-clock.ts';
@@ -28,12 +28,7 @@ export function simulate3d(plan: Plan, space: Space3d, options: SimulateOptions 
   const clocks = planClocks(plan, peaks, finest3d(mesh));
   let total = clocks.reduce((n, c) => n + c.count, 0);
   checkWork(plan, total, cells);
-  const concentration: Record<string, Float64Array> = {};
-  const entered: Record<string, number> = {};
-  for (const s of species) {
-    concentration[s.name] = new Float64Array(cells);
-    entered[s.name] = 0;
-  }
+  const { concentration, entered } = emptyFields(species, cells);
   const stepper = keepLayout(new AdiStepper3d(mesh, mask));
   // The coupled diffusivity sees the field as nz rows of nx·ny nodes (its uniform "rows" are
   // the z planes where no dopant has arrived).
@@ -62,11 +57,7 @@ export function simulate3d(plan: Plan, space: Space3d, options: SimulateOptions 
       const { t0, t1 } = timeStep;
       const dt = t1 - t0;
       const midC = temperatureAt(st, 0.5 * (t0 + t1));
-      let surface = 0;
-      if (held) {
-        surface = st.surfaceAtSolubility ? (held.solubility(midC) as number) : st.surfaceConcentrationCm3!;
-        entered[held.name] += stepper.holdSurface(concentration[held.name], surface);
-      }
+      if (held) holdSource(st, held, midC, stepper, concentration, entered);
       const budgets: ComponentDiffusivities[] = [];
       for (const s of present) budgets.push(componentBudgets(st, s, t0, t1));
       if (coupled && coupled.prepare(concentration, present, budgets, midC, previousDt > 0 ? dt / (2 * previousDt) : 0)) damped = DAMPED_STEPS;

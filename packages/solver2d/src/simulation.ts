@@ -1,4 +1,4 @@
-import type { Plan } from './plan.ts';
+import type { Plan, SpeciesPlan, StepPlan } from './plan.ts';
 import type { StepEnhancementRecord } from './point-defect-enhancement.ts';
 
 /* What a solve returns and how it reports progress and failure: shared by the 2D and 3D time loops. */
@@ -65,3 +65,26 @@ export class StoppedError extends Error {
   }
 }
 
+
+/** A zero field of `cells` values per species, and the atoms that entered each (none yet). */
+export function emptyFields(species: readonly SpeciesPlan[], cells: number): { concentration: Record<string, Float64Array>; entered: Record<string, number> } {
+  const concentration: Record<string, Float64Array> = {};
+  const entered: Record<string, number> = {};
+  for (const s of species) {
+    concentration[s.name] = new Float64Array(cells);
+    entered[s.name] = 0;
+  }
+  return { concentration, entered };
+}
+
+/**
+ * A predeposition's held surface for the coming time step: its value at the step's middle
+ * temperature (the solubility there, or the value given), set in the open surface cells of
+ * `held`'s field; the atoms that adds count as entered. Returns the value, cm^-3.
+ */
+export function holdSource(st: StepPlan, held: SpeciesPlan, midC: number, stepper: { holdSurface(c: Float64Array, value: number): number },
+                           concentration: Record<string, Float64Array>, entered: Record<string, number>): number {
+  const surface = st.surfaceAtSolubility ? (held.solubility(midC) as number) : st.surfaceConcentrationCm3!;
+  entered[held.name] += stepper.holdSurface(concentration[held.name], surface);
+  return surface;
+}

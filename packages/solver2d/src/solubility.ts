@@ -26,6 +26,14 @@ export function interpolateSolubility(table: readonly (readonly [number, number]
   const lo = table[0][0];
   const hi = table[table.length - 1][0];
   if (temperatureC < lo || temperatureC > hi) return `the solubility table covers ${lo} to ${hi} °C (got ${temperatureC} °C); give a number`;
+  return extrapolatedSolubility(table, temperatureC);
+}
+
+/**
+ * Log-linear in 1/T through the table, carried on along its end segments outside it: an
+ * anneal at 700 °C still needs a limit (the extrapolation is ours, no source).
+ */
+export function extrapolatedSolubility(table: readonly (readonly [number, number])[], temperatureC: number): number {
   let k = 0;
   while (k + 2 < table.length && table[k + 1][0] < temperatureC) k++;
   const [t0, c0] = table[k];

@@ -1,9 +1,10 @@
-import { closeSync, existsSync, fstatSync, openSync, readdirSync, readFileSync, readSync, rmSync } from 'node:fs';
+import { closeSync, existsSync, fstatSync, openSync, readFileSync, readSync, rmSync } from 'node:fs';
 import { basename, join } from 'node:path';
 import { reportSchema, type Report } from '@edgewise/solver2d';
 import { reportResults, type WindowResult } from './csv.ts';
 import { recipeSha256 } from './hash.ts';
 import { RECIPE_FILE } from './task.ts';
+import { temporariesIn } from '../files.ts';
 
 /** Files every finished run folder holds besides recipe.json (output.ts writes them). */
 const NPY_FILES = ['field.npy', 'x.npy', 'z.npy'] as const;
@@ -114,23 +115,13 @@ export function finishedRun(folder: string, expectedSha256: string, errorSolves:
   return runFolderProblem(folder, expectedSha256, errorSolves).windows;
 }
 
-/** The temporary names files.ts writes before renaming: `<name>.<pid>.<random>.tmp`. */
-export const TEMP_NAME = /\.\d+\.[0-9a-z]+\.tmp$/;
-
 /**
  * Removes temporary files left by a process that was killed while writing: those in `folder`
  * whose name starts with one of `prefixes` (or every one, for null). Only folders this process
  * owns are passed here, so no live writer loses its file.
  */
 export function removeStaleTemps(folder: string, prefixes: readonly string[] | null): void {
-  let names: string[];
-  try {
-    names = readdirSync(folder);
-  } catch {
-    return;
-  }
-  for (const name of names) {
-    if (!TEMP_NAME.test(name)) continue;
+  for (const { name } of temporariesIn(folder)) {
     if (prefixes && !prefixes.some((p) => name.startsWith(`${p}.`))) continue;
     rmSync(join(folder, name), { force: true });
   }

@@ -1,14 +1,14 @@
 import { lstatSync, readdirSync, rmdirSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileSystemError } from '../errors.ts';
-import { TEMP_NAME } from './resume.ts';
+import { TEMPORARY } from '../files.ts';
 import { inShard, type Shard } from './shard.ts';
 import { RECIPE_FILE } from './task.ts';
 
 /** A run folder's name as a sweep makes it (matrix.ts runDir): `run-` and the id, zero-padded. */
 const RUN_FOLDER = /^run-(\d+)$/;
 
-/** Files a sweep writes into a run folder, 2D or 3D (output.ts and the marker); its temporary names are TEMP_NAME. */
+/** Files a sweep writes into a run folder, 2D or 3D (output.ts and the marker); its temporary names are files.ts's TEMPORARY. */
 const RUN_FILES = new Set(['field.npy', 'x.npy', 'y.npy', 'z.npy', 'contour.csv', 'contour.svg', 'plan.svg', 'report.json', RECIPE_FILE]);
 
 export interface StaleFolders {
@@ -49,7 +49,7 @@ export function removeStaleRunFolders(out: string, ours: ReadonlySet<string>, sh
     } catch {
       continue;
     }
-    if (!entries.every((e) => RUN_FILES.has(e) || TEMP_NAME.test(e))) {
+    if (!entries.every((e) => RUN_FILES.has(e) || TEMPORARY.test(e))) {
       result.kept.push(name);
       continue;
     }
