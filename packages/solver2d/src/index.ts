@@ -8,7 +8,7 @@ export { fullAxes } from './space3d.ts';
 export type { RectangleReport, PlanView } from './report.ts';
 export { BUILTIN_DOPANTS, intrinsicDiffusivityCm2PerS, type Dopant } from './dopants.ts';
 export type { Mesh } from './mesh.ts';
-export type { Polyline, Point } from './junction.ts';
+export { zeroContours, type Polyline, type Point } from './junction.ts';
 export { MOBILITY_FITS, mobilityCm2PerVs, conductivitySPerCm, resistivityOhmCm, fitForDopant, type MobilityFit } from './mobility.ts';
 export { coarseReports, coarsenedRecipe, withErrorBars, solveWithErrorBars } from './error-estimate.ts';
 export { richardsonError, type ErrorEstimateSummary } from './error-bars.ts';
