@@ -11,6 +11,9 @@ import { DisplayPanel, NET, type PanelState } from './panel.ts';
 import { drawPlot, plotPoints } from './plot.ts';
 import { placeCaptions } from './caption.ts';
 import { placeDimensionLabels } from './dimensions.ts';
+import { CutPanel } from './cut-panel.ts';
+import { placePlanLabels } from './plan-marks.ts';
+import { sectionRuns } from './sections3d.ts';
 import { PointerControls, type Mode } from './pointer.ts';
 import { Stage } from './stage.ts';
 import { Tile } from './tile.ts';
@@ -62,6 +65,8 @@ export class App {
   readonly live: LivePanel;
   private liveProblems: Problem[] = [];
   private readonly pointer: PointerControls;
+  /** where the cuts through 3D runs go */
+  readonly cuts: CutPanel;
 
   constructor(private readonly el: PageElements) {
     this.stage = new Stage(el.view);
@@ -79,6 +84,7 @@ export class App {
         this.showProblems();
       },
     });
+    this.cuts = new CutPanel(this.panel.gui.addFolder('3D cuts'), () => this.showCuts());
     new ResizeObserver(() => this.invalidate(true)).observe(el.view);
     this.pointer = new PointerControls(el.view, el.readout, this);
     window.addEventListener('keydown', (e) => {
@@ -126,7 +132,8 @@ export class App {
     this.data = data;
     this.modeNow = { kind: 'grid' };
     const started = performance.now();
-    this.tileList = data.runs.map((r) => new Tile(r, this.stage.colourMap));
+    this.cuts.setRuns(data.runs);
+    this.tileList = sectionRuns(data.runs, this.cuts.choice).map((r) => new Tile(r, this.stage.colourMap));
     if (data.recipe !== null && data.recipe !== undefined) this.setLiveRecipe(data.recipe, `recipe.json in ${data.label}`);
     this.refreshQuantities();
     this.showProblems();
@@ -134,6 +141,24 @@ export class App {
     this.setEmpty(this.tileList.length === 0 ? 'Nothing to show: see the messages above.' : null);
     this.applyStyle();
     this.timing.buildMs = performance.now() - started;
+  }
+
+  /** The 3D runs' sections anew, for the cuts chosen now (the 2D runs' tiles stay). */
+  private showCuts(): void {
+    if (!this.data) return;
+    const kept = new Set(this.tileList.filter((t) => !t.run.section));
+    for (const t of this.tileList) if (!kept.has(t)) t.dispose();
+    const runs = sectionRuns(this.data.runs, this.cuts.choice);
+    const byRun = new Map([...kept].map((t) => [t.run, t]));
+    this.tileList = runs.map((r) => byRun.get(r) ?? new Tile(r, this.stage.colourMap));
+    if (this.liveTile) this.tileList.push(this.liveTile);
+    if (this.modeNow.kind === 'focus') this.showGrid();
+    this.applyStyle();
+  }
+
+  /** Depth drawn stretched as the panel says, except with sections of 3D runs: those are always true to shape. */
+  private stretch(): number {
+    return this.tileList.some((t) => t.run.section) ? 1 : this.panel.state.depthStretch;
   }
 
   setLiveRecipe(recipe: unknown, label: string): void {
@@ -208,8 +233,8 @@ export class App {
   }
 
   private layout(): void {
-    const { depthStretch, shown } = this.panel.state;
-    const a = arrange(this.tileList, this.modeNow, { area: this.area(), stretch: depthStretch, edges: shown === 'edges', parameters: this.data?.parameters ?? [] });
+    const { shown } = this.panel.state;
+    const a = arrange(this.tileList, this.modeNow, { area: this.area(), stretch: this.stretch(), edges: shown === 'edges', parameters: this.data?.parameters ?? [] });
     this.grid = a.grid;
     this.el.scaleNote.textContent = this.tileList.length ? scaleNote(a, this.modeNow.kind === 'focus') : '';
     const toggle = this.el.shownToggle;
@@ -238,6 +263,7 @@ export class App {
     this.stage.draw(visible);
     placeCaptions(this.el.captions, visible, this.stage.height, this.grid?.cellWidth ?? 200);
     placeDimensionLabels(this.el.captions, visible);
+    placePlanLabels(this.el.captions, visible);
     if (this.timing.firstFrameMs === null && this.loadStartedAt !== null && visible.length > 0) {
       // Wait for the GPU to finish the frame so the figure is the real drawing time.
       this.stage.finish();
@@ -254,7 +280,7 @@ export class App {
 
   /** Focuses a pane of a tile (the whole cross-section when none is given). */
   focus(tile: Tile, pane: Pane = { x0Um: 0, x1Um: tile.widthUm }, depthUm = tile.depthUm): void {
-    const state = fitFocus(pane, depthUm, this.area(), this.panel.state.depthStretch);
+    const state = fitFocus(pane, depthUm, this.area(), this.stretch());
     this.modeNow = { kind: 'focus', tile, pane, depthUm, state };
     this.el.back.hidden = false;
     this.invalidate(true);

@@ -29,7 +29,12 @@ export interface ArrangeOptions {
 
 export function arrange(tiles: readonly Tile[], mode: Mode, o: ArrangeOptions): Arrangement {
   for (const t of tiles) t.setViews([]);
-  const framing = tileFrames(tiles.map((t) => ({ report: t.run.report, widthUm: t.widthUm, depthUm: t.depthUm })), o.edges);
+  // Sections of 3D runs are shown whole (a plan view's "depth" is its length; a cut's few
+  // edges are seen whole at the plan view's scale); the edge view is for the 2D tiles.
+  const flat = tiles.filter((t) => !t.run.section);
+  const framing = tileFrames(flat.map((t) => ({ report: t.run.report, widthUm: t.widthUm, depthUm: t.depthUm })), o.edges);
+  let next = 0;
+  const frames = tiles.map((t) => (t.run.section ? { panes: [{ x0Um: 0, x1Um: t.widthUm }], depthUm: t.depthUm } : framing.frames[next++]));
   const common = { edgesAvailable: framing.edges, edgesShown: o.edges && framing.edges, halfWidthUm: framing.halfWidthUm };
   if (mode.kind === 'focus') {
     mode.tile.setViews([focusView(mode.state, o.area)]);
@@ -37,7 +42,7 @@ export function arrange(tiles: readonly Tile[], mode: Mode, o: ArrangeOptions): 
   }
   if (tiles.length === 0) return { grid: null, stretch: o.stretch, ...common };
   const columns = sweepColumns(o.parameters, tiles.map((t) => t.run.values));
-  const extents = tiles.map((t, k) => ({ widthUm: t.widthUm, depthUm: framing.frames[k].depthUm, panes: framing.frames[k].panes }));
+  const extents = tiles.map((t, k) => ({ widthUm: t.widthUm, depthUm: frames[k].depthUm, panes: frames[k].panes }));
   const lines = Math.max(...tiles.map((t) => captionLines(t.run.report)));
   const grid = layoutGrid(extents, o.area, o.stretch, columns, lines);
   tiles.forEach((t, k) => t.setViews(grid.views[k]));

@@ -115,6 +115,21 @@ export function captionElement(run: RunData): HTMLElement {
   head.textContent = runTitle(run);
   div.append(head);
   const tips = [head.textContent];
+  if (run.section) {
+    // A section of a 3D run: which cut it is, then the report's numbers it shows.
+    const cut = document.createElement('div');
+    cut.className = 'caption-cut';
+    cut.textContent = run.section.title;
+    div.append(cut);
+    for (const text of run.section.lines) {
+      const d = document.createElement('div');
+      d.className = 'caption-section';
+      d.textContent = text;
+      div.append(d);
+    }
+    div.title = [...tips, run.section.title, ...run.section.lines].join('\n');
+    return div;
+  }
   const several = run.report.windows.length > 1;
   run.report.windows.forEach((_, k) => {
     const { rows, tip } = windowRows(run.report, k, several, !several && typeof run.values.windowWidthUm === 'number');

@@ -1,4 +1,5 @@
 import { REPORT_SCHEMA_ID, SWEEP_SCHEMA_ID, type Report } from '@edgewise/solver2d';
+import type { SectionInfo } from './cuts3d.ts';
 import { parseNpy } from './npy.ts';
 
 /**
@@ -40,9 +41,13 @@ export interface RunData {
   /** x cell centres and z nodes, µm */
   x: Float64Array;
   z: Float64Array;
-  /** [layers, nz, nx], cm^-3; layer 0 net doping */
+  /** [layers, nz, nx], cm^-3; layer 0 net doping; a 3D run's is [layers, nz, ny, nx] */
   field: Float64Array;
   layers: string[];
+  /** a 3D run (`mask.rectangles`): y cell centres, µm */
+  y?: Float64Array;
+  /** a section of a 3D run drawn as a tile (sections3d.ts): what it shows */
+  section?: SectionInfo;
 }
 
 export interface DataSet {
@@ -96,7 +101,11 @@ export function reportProblem(r: unknown): string | null {
   }
   const f = r.field;
   if (!isObject(f) || !Array.isArray(f.layers) || f.layers.length < 1 || f.layers.some((l) => typeof l !== 'string')) return '"field.layers" must be a list of layer names';
-  if (!Array.isArray(f.shape) || f.shape.length !== 3 || f.shape.some((n) => !Number.isInteger(n) || n < 1)) return '"field.shape" must be three positive whole numbers [layers, nz, nx]';
+  // A 3D run (rectangles in its report) has the y axis too.
+  const volume = Array.isArray(r.rectangles);
+  if (volume && (!isNumber(cs.lengthUm) || cs.lengthUm <= 0)) return '"crossSection.lengthUm" must be a positive number in a 3D report (with "rectangles")';
+  const dims = volume ? 'four positive whole numbers [layers, nz, ny, nx]' : 'three positive whole numbers [layers, nz, nx]';
+  if (!Array.isArray(f.shape) || f.shape.length !== (volume ? 4 : 3) || f.shape.some((n) => !Number.isInteger(n) || n < 1)) return `"field.shape" must be ${dims}`;
   if (f.shape[0] !== f.layers.length) return `"field.shape" has ${f.shape[0]} layers but "field.layers" names ${f.layers.length}`;
   if (!isObject(r.substrate) || !isNumber(r.substrate.concentrationCm3)) return '"substrate.concentrationCm3" must be a number';
   return null;
@@ -124,19 +133,26 @@ export async function loadRun(source: FileSource, dir: string, id: string, value
   const problem = reportProblem(report);
   if (problem) throw new FileProblem(reportFile, problem);
   const r = report as Report;
-  const [layers, nz, nx] = r.field.shape;
+  const shape = r.field.shape;
+  const [nz, nx] = [shape[1], shape[shape.length - 1]];
+  const yFile = join(dir, 'y.npy');
+  const yArray = shape.length === 4 ? readNpy(source, yFile) : null;
+  yArray?.catch(() => undefined);
   const [field, x, z] = await arrays;
-  if (field.shape.join() !== [layers, nz, nx].join()) {
-    throw new FileProblem(fieldFile, `has shape [${field.shape.join(', ')}], report.json says [${layers}, ${nz}, ${nx}]`);
+  if (field.shape.join() !== shape.join()) {
+    throw new FileProblem(fieldFile, `has shape [${field.shape.join(', ')}], report.json says [${shape.join(', ')}]`);
   }
   if (x.shape.length !== 1 || x.shape[0] !== nx) throw new FileProblem(xFile, `holds ${x.shape.join(' × ')} values, the field has ${nx} columns`);
   if (z.shape.length !== 1 || z.shape[0] !== nz) throw new FileProblem(zFile, `holds ${z.shape.join(' × ')} values, the field has ${nz} rows`);
-  for (const [file, a] of [[xFile, x.data], [zFile, z.data]] as const) {
+  const y = yArray ? await yArray : null;
+  if (y && (y.shape.length !== 1 || y.shape[0] !== shape[2])) throw new FileProblem(yFile, `holds ${y.shape.join(' × ')} values, the field has ${shape[2]} along y`);
+  for (const [file, a] of [[xFile, x.data], [zFile, z.data], [yFile, y?.data ?? new Float64Array(0)]] as const) {
     for (let k = 1; k < a.length; k++) if (!(a[k] > a[k - 1])) throw new FileProblem(file, `coordinates must increase (entry ${k} is ${a[k]} after ${a[k - 1]})`);
   }
   for (let k = 0; k < field.data.length; k++) {
     if (!Number.isFinite(field.data[k])) throw new FileProblem(fieldFile, `value ${k} is ${field.data[k]}, not a finite number`);
   }
+  if (y) return { id, dir, values, report: r, x: x.data, y: y.data, z: z.data, field: field.data, layers: r.field.layers };
   return { id, dir, values, report: r, x: x.data, z: z.data, field: field.data, layers: r.field.layers };
 }
 

@@ -6,6 +6,7 @@ import { sampleField } from './sample.ts';
 import type { Stage } from './stage.ts';
 import type { Tile } from './tile.ts';
 import { canvasToWorld, type TileView } from './tile-view.ts';
+import { sectionPlace } from './cuts3d.ts';
 
 /** The grid of every tile, or one tile focused with its pan and zoom. */
 export type Mode = { kind: 'grid' } | { kind: 'focus'; tile: Tile; pane: Pane; depthUm: number; state: FocusState };
@@ -105,6 +106,7 @@ export class PointerControls {
     const { tile, view } = hit;
     const [x, z] = canvasToWorld(view, px, py);
     const s = sampleField(tile.run.field, tile.run.layers.length, tile.grid, x, z);
-    showReadout(this.readout, tile.run.layers, x, z, s, { runId: tile.run.id, title: runTitle(tile.run) });
+    const place = tile.run.section ? sectionPlace(tile.run.section, x, z) : undefined;
+    showReadout(this.readout, tile.run.layers, x, z, s, { runId: tile.run.id, title: runTitle(tile.run) }, place);
   }
 }

@@ -6,7 +6,7 @@ import { junctionSide, type Sample } from './sample.ts';
  * and the side of the junction. Each row carries its quantity or layer and the full-precision
  * value as data attributes.
  */
-export function showReadout(el: HTMLElement, layers: string[], xUm: number, zUm: number, sample: Sample | null, run?: { runId: string; title: string }): void {
+export function showReadout(el: HTMLElement, layers: string[], xUm: number, zUm: number, sample: Sample | null, run?: { runId: string; title: string }, place?: [string, number][]): void {
   el.hidden = false;
   el.replaceChildren();
   if (run) {
@@ -28,10 +28,10 @@ export function showReadout(el: HTMLElement, layers: string[], xUm: number, zUm:
   };
   el.dataset.xUm = String(xUm);
   el.dataset.zUm = String(zUm);
-  row('x', `${xUm.toFixed(4)} µm`, { quantity: 'x' });
-  row('z', `${zUm.toFixed(4)} µm`, { quantity: 'z' });
+  // A section of a 3D run names the point in the run's own coordinates (x, y, z; s along a diagonal).
+  for (const [name, um] of place ?? [['x', xUm], ['z', zUm]]) row(name, `${um.toFixed(4)} µm`, { quantity: name, um: String(um) });
   if (!sample) {
-    row('', 'outside the cross-section');
+    row('', place ? 'outside the section' : 'outside the cross-section');
     return;
   }
   layers.forEach((name, k) => {

@@ -4,6 +4,8 @@ import { niceTicks, formatTick } from './ticks.ts';
 import type { Tile } from './tile.ts';
 import type { TileView } from './tile-view.ts';
 import { drawDimension, viewShowsEdge } from './dimensions.ts';
+import type { SectionInfo } from './cuts3d.ts';
+import { drawPlanMarks } from './plan-marks.ts';
 
 const BACKGROUND = 0xf6f6f4;
 
@@ -88,8 +90,9 @@ export class Stage {
     for (const tile of tiles) {
       tile.views.forEach((v, k) => {
         if (tile.showContours) drawContours(ctx, v, tile.contours);
-        drawTileAxes(ctx, v, tile.widthUm, tile.depthUm, k === 0);
+        drawTileAxes(ctx, v, tile.widthUm, tile.depthUm, k === 0, tile.run.section);
         for (const d of tile.dimensions) if (viewShowsEdge(v, d)) drawDimension(ctx, v, d);
+        if (tile.run.section) drawPlanMarks(ctx, v, tile.run.section);
       });
     }
   }
@@ -146,9 +149,10 @@ function drawContours(ctx: CanvasRenderingContext2D, v: TileView, lines: Float64
 
 /**
  * A view's axes: x along the bottom of the cross-section, depth down the left (labelled on
- * the first pane of a tile only), each with its unit.
+ * the first pane of a tile only), each with its unit. A section of a 3D run names its own
+ * axes; its plan view counts y up from the bottom (the tile's depth is length − y).
  */
-function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: number, depthUm: number, first: boolean): void {
+function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: number, depthUm: number, first: boolean, section?: SectionInfo): void {
   const xMin = Math.max(0, v.x0Um);
   const xMax = Math.min(widthUm, v.x0Um + v.width / v.pxPerUmX);
   const zMin = Math.max(0, v.z0Um);
@@ -167,22 +171,24 @@ function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: numbe
   ctx.lineTo(px(xMax), axisY);
   ctx.moveTo(axisX, py(zMin));
   ctx.lineTo(axisX, py(zMax));
+  const flip = section?.downFromUm ?? null;
+  const shown = (z: number) => (flip === null ? z : flip - z);
   const xt = niceTicks(xMin, xMax, Math.max(2, Math.floor((px(xMax) - px(xMin)) / 70)));
-  const zt = niceTicks(zMin, zMax, Math.max(2, Math.floor((py(zMax) - py(zMin)) / 36)));
+  const zt = niceTicks(shown(zMin), shown(zMax), Math.max(2, Math.floor((py(zMax) - py(zMin)) / 36)));
   for (const x of xt.values) {
     ctx.moveTo(Math.round(px(x)) + 0.5, axisY);
     ctx.lineTo(Math.round(px(x)) + 0.5, axisY + 4);
   }
   for (const z of zt.values) {
-    ctx.moveTo(axisX, Math.round(py(z)) + 0.5);
-    ctx.lineTo(axisX - 4, Math.round(py(z)) + 0.5);
+    ctx.moveTo(axisX, Math.round(py(shown(z))) + 0.5);
+    ctx.lineTo(axisX - 4, Math.round(py(shown(z))) + 0.5);
   }
   ctx.stroke();
   ctx.textAlign = 'center';
   ctx.textBaseline = 'top';
   for (const x of xt.values) ctx.fillText(formatTick(x, xt), px(x), axisY + 5);
   ctx.fillStyle = '#555';
-  ctx.fillText('x, µm', 0.5 * (px(xMin) + px(xMax)), axisY + 18);
+  ctx.fillText(section?.across ?? 'x, µm', 0.5 * (px(xMin) + px(xMax)), axisY + 18);
   if (!first) return;
   ctx.fillStyle = '#333';
   ctx.textAlign = 'right';
@@ -191,7 +197,7 @@ function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: numbe
   for (const z of zt.values) {
     const label = formatTick(z, zt);
     widest = Math.max(widest, ctx.measureText(label).width);
-    ctx.fillText(label, axisX - 6, py(z));
+    ctx.fillText(label, axisX - 6, py(shown(z)));
   }
   ctx.save();
   ctx.fillStyle = '#555';
@@ -199,6 +205,6 @@ function drawTileAxes(ctx: CanvasRenderingContext2D, v: TileView, widthUm: numbe
   ctx.rotate(-Math.PI / 2);
   ctx.textAlign = 'center';
   ctx.textBaseline = 'bottom';
-  ctx.fillText('depth, µm', 0, 0);
+  ctx.fillText(section?.down ?? 'depth, µm', 0, 0);
   ctx.restore();
 }

@@ -1,6 +1,7 @@
 import type { App, Timing } from './app.ts';
 import { pan, zoomAbout } from './layout.ts';
 import type { PanelState } from './panel.ts';
+import type { CutChoice } from './sections3d.ts';
 import { worldToCanvas } from './tile-view.ts';
 
 /**
@@ -20,6 +21,12 @@ export class TestHooks {
   }
 
   nextFrame(): Promise<void> {
+    return this.app.nextFrame();
+  }
+
+  /** Moves the cuts through 3D runs, as the panel's "3D cuts" folder does. */
+  setCuts(choice: Partial<CutChoice>): Promise<void> {
+    this.app.cuts.set(choice);
     return this.app.nextFrame();
   }
 
@@ -62,7 +69,7 @@ export class TestHooks {
     return {
       mode: mode.kind,
       focused: mode.kind === 'focus' ? mode.tile.run.id : null,
-      tiles: app.tiles.map((t) => ({ id: t.run.id, dir: t.run.dir, values: t.run.values, view: t.view, views: t.views, columns: t.grid.columns, rows: t.grid.rows, detail: t.detail })),
+      tiles: app.tiles.map((t) => ({ id: t.run.id, dir: t.run.dir, values: t.run.values, view: t.view, views: t.views, section: t.run.section?.kind ?? null, columns: t.grid.columns, rows: t.grid.rows, detail: t.detail })),
       problems: app.problems,
       frames: app.stage.frames,
       timing: { ...app.timing },
