@@ -156,4 +156,19 @@ describe('edgewise view on a 3D run', () => {
     expect(s.tiles).toHaveLength(4);
     await page.screenshot({ path: join(ARTIFACTS, 'view3d-concave.png') });
   });
+
+  it('re-runs the 3D recipe live: the live run shows as its own plan view and cuts, with the same reaches', async () => {
+    await page.evaluate(() => { document.body.dataset.live = ''; });
+    await page.locator('#panel button', { hasText: 'run in the background' }).click();
+    await page.waitForFunction(() => (document.body.dataset.live ?? '').startsWith('done'), null, { timeout: 120_000 });
+    const s = await snapshot(page);
+    expect(s.problems).toEqual([]);
+    expect(s.tiles.map((t) => t.id).slice(4)).toEqual(['live/plan', 'live/cut-x', 'live/cut-y', 'live/cut-diagonal']);
+    // The same recipe through the same solver in the page's worker: the report's numbers again.
+    const live = await page.$eval('.dimension.plan-reach[data-run-id="live/plan"][data-kind="corner"][data-rectangle="0"][data-name="bottomLeft"]', (e) => e.textContent);
+    expect(live).toBe(`${report.rectangles[0].cornerReachUm.bottomLeft.toFixed(3)} µm`);
+    expect(await page.$eval('.caption[data-run-id="live/cut-x"] .caption-head', (e) => e.textContent)).toBe('live re-run');
+    // The cut chosen before (y = 6.5 µm) holds for the live run too.
+    expect(await captionCut('live/cut-x')).toBe('cut along x at y = 6.50 µm');
+  });
 });

@@ -5,7 +5,7 @@ import { arrange, scaleNote, tileAt, viewAt } from './arrange.ts';
 import type { Pane } from './edge-view.ts';
 import { fitFocus, type FocusState, type GridLayout } from './layout.ts';
 import { LivePanel } from './live-panel.ts';
-import { loadDataSet, type DataSet, type FileSource, type Problem } from './load.ts';
+import { loadDataSet, type DataSet, type FileSource, type Problem, type RunData } from './load.ts';
 import { showProblems } from './messages.ts';
 import { DisplayPanel, NET, type PanelState } from './panel.ts';
 import { drawPlot, plotPoints } from './plot.ts';
@@ -13,7 +13,7 @@ import { placeCaptions } from './caption.ts';
 import { placeDimensionLabels } from './dimensions.ts';
 import { CutPanel } from './cut-panel.ts';
 import { placePlanLabels } from './plan-marks.ts';
-import { sectionRuns } from './sections3d.ts';
+import { isVolumeRun, sectionRuns } from './sections3d.ts';
 import { PointerControls, type Mode } from './pointer.ts';
 import { Stage } from './stage.ts';
 import { Tile } from './tile.ts';
@@ -53,7 +53,9 @@ export class App {
   readonly stage: Stage;
   private data: DataSet | null = null;
   private tileList: Tile[] = [];
-  private liveTile: Tile | null = null;
+  /** the live re-run and its tiles (a 3D run has several) */
+  private liveRun: RunData | null = null;
+  private liveTiles: Tile[] = [];
   private modeNow: Mode = { kind: 'grid' };
   private grid: GridLayout | null = null;
   private layoutDirty = true;
@@ -78,7 +80,7 @@ export class App {
       },
     });
     this.live = new LivePanel(this.panel.gui.addFolder('live re-run'), el, {
-      show: (run) => this.setLiveTile(new Tile(run, this.stage.colourMap)),
+      show: (run) => this.setLiveRun(run),
       problems: (problems) => {
         this.liveProblems = problems;
         this.showProblems();
@@ -128,7 +130,8 @@ export class App {
   /** Replaces the tiles: the old ones free their GPU memory first. */
   setData(data: DataSet): void {
     for (const t of this.tileList) t.dispose();
-    this.liveTile = null;
+    this.liveRun = null;
+    this.liveTiles = [];
     this.data = data;
     this.modeNow = { kind: 'grid' };
     const started = performance.now();
@@ -145,15 +148,14 @@ export class App {
 
   /** The 3D runs' sections anew, for the cuts chosen now (the 2D runs' tiles stay). */
   private showCuts(): void {
-    if (!this.data) return;
-    const kept = new Set(this.tileList.filter((t) => !t.run.section));
-    for (const t of this.tileList) if (!kept.has(t)) t.dispose();
-    const runs = sectionRuns(this.data.runs, this.cuts.choice);
-    const byRun = new Map([...kept].map((t) => [t.run, t]));
-    this.tileList = runs.map((r) => byRun.get(r) ?? new Tile(r, this.stage.colourMap));
-    if (this.liveTile) this.tileList.push(this.liveTile);
+    const loaded = this.tileList.filter((t) => !this.liveTiles.includes(t));
+    const kept = new Map(loaded.filter((t) => !t.run.section).map((t) => [t.run, t]));
+    for (const t of loaded) if (t.run.section) t.dispose();
+    this.tileList = sectionRuns(this.data?.runs ?? [], this.cuts.choice).map((r) => kept.get(r) ?? new Tile(r, this.stage.colourMap));
+    this.tileList.push(...this.liveTiles);
     if (this.modeNow.kind === 'focus') this.showGrid();
-    this.applyStyle();
+    if (this.liveRun && isVolumeRun(this.liveRun)) this.setLiveRun(this.liveRun);
+    else this.applyStyle();
   }
 
   /** Depth drawn stretched as the panel says, except with sections of 3D runs: those are always true to shape. */
@@ -175,18 +177,21 @@ export class App {
     showProblems(this.el.messages, this.problems);
   }
 
-  private setLiveTile(tile: Tile): void {
-    const old = this.liveTile;
-    const focused = this.modeNow.kind === 'focus' && this.modeNow.tile === old;
-    if (old) {
-      this.tileList = this.tileList.filter((t) => t !== old);
-      old.dispose();
-    }
-    this.liveTile = tile;
-    this.tileList.push(tile);
+  /** The live re-run's tiles in place of the last ones: one, or a 3D run's plan view and cuts. */
+  private setLiveRun(run: RunData): void {
+    const old = this.liveTiles;
+    const focused = this.modeNow.kind === 'focus' && old.includes(this.modeNow.tile) ? this.modeNow.tile.run.id : null;
+    this.tileList = this.tileList.filter((t) => !old.includes(t));
+    for (const t of old) t.dispose();
+    this.liveRun = run;
+    if (isVolumeRun(run) && !this.cuts.shown) this.cuts.setRuns([run]);
+    this.liveTiles = sectionRuns([run], this.cuts.choice).map((r) => new Tile(r, this.stage.colourMap));
+    this.tileList.push(...this.liveTiles);
     this.refreshQuantities();
     this.applyStyle();
-    if (focused && this.modeNow.kind === 'focus') this.focus(tile, this.modeNow.pane, this.modeNow.depthUm);
+    const again = this.liveTiles.find((t) => t.run.id === focused);
+    if (again && this.modeNow.kind === 'focus') this.focus(again, this.modeNow.pane, this.modeNow.depthUm);
+    else if (focused !== null) this.showGrid();
     this.setEmpty(null);
   }
 

@@ -101,7 +101,8 @@ export function captionLines(report: Report): number {
 
 /** The run in words: what was swept and its values, else the recipe's title, else its id. */
 export function runTitle(run: RunData): string {
-  if (run.id === LIVE_ID) return 'live re-run';
+  // A live 3D run's sections are "live/plan", "live/cut-x" …
+  if (run.id === LIVE_ID || run.id.startsWith(`${LIVE_ID}/`)) return 'live re-run';
   const values = Object.entries(run.values).map(([k, v]) => parameterText(k, v, run.report)).join(' · ');
   return values || run.report.title || run.id;
 }

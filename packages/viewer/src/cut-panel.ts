@@ -17,6 +17,11 @@ export class CutPanel {
     folder.hide();
   }
 
+  /** Whether the folder offers a 3D run's cuts. */
+  get shown(): boolean {
+    return !this.folder._hidden;
+  }
+
   /** Offers the cuts of the first 3D run among `runs` (hidden when there is none) and goes back to the defaults. */
   setRuns(runs: readonly RunData[]): void {
     const folder = this.folder;

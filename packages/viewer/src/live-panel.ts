@@ -87,7 +87,7 @@ export class LivePanel {
       });
       this.actions.show({
         id: LIVE_ID, dir: '(live)', values: {}, report: result.report, x: result.x, z: result.z,
-        field: result.field, layers: result.report.field.layers,
+        field: result.field, layers: result.report.field.layers, ...(result.y ? { y: result.y } : {}),
       });
       this.state.status = `done in ${result.seconds.toFixed(2)} s`;
       text.textContent = `live run done in ${result.seconds.toFixed(2)} s`;

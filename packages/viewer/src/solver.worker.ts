@@ -1,5 +1,5 @@
 import * as Comlink from 'comlink';
-import { parseRecipe, planRecipe, solveWithErrorBars, stackLayers, type Report } from '@edgewise/solver2d';
+import { fullAxes, parseRecipe, planRecipe, solveWithErrorBars, stackLayers, type Report } from '@edgewise/solver2d';
 
 /**
  * The solver in a Web Worker, reached through comlink, so a live re-run never blocks the
@@ -11,6 +11,8 @@ export interface LiveResult {
   report: Report;
   x: Float64Array;
   z: Float64Array;
+  /** a 3D recipe (mask.rectangles): y cell centres over the full plan view, µm; the field is [layers, nz, ny, nx] */
+  y?: Float64Array;
   field: Float64Array;
   seconds: number;
 }
@@ -36,10 +38,13 @@ const api = {
     const { report, field } = solveWithErrorBars(plan, { levels: 2, onFraction: (f) => tell(f, false) });
     tell(1, true);
     const stacked = stackLayers(field);
-    const x = Float64Array.from(field.mesh.x);
+    // 3D: the full plan view's axes (mirrored parts unfolded), as `edgewise run` writes them.
+    const axes = field.space ? fullAxes(field.space) : null;
+    const x = Float64Array.from(axes ? axes.x : field.mesh.x);
     const z = Float64Array.from(field.mesh.z);
-    const result: LiveResult = { report, x, z, field: stacked, seconds: (performance.now() - started) / 1000 };
-    return Comlink.transfer(result, [stacked.buffer, x.buffer, z.buffer]);
+    const y = axes ? Float64Array.from(axes.y) : undefined;
+    const result: LiveResult = { report, x, z, ...(y ? { y } : {}), field: stacked, seconds: (performance.now() - started) / 1000 };
+    return Comlink.transfer(result, [stacked.buffer, x.buffer, z.buffer, ...(y ? [y.buffer] : [])]);
   },
 };
 
