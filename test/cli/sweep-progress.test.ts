@@ -24,7 +24,10 @@ describe('edgewise sweep progress', () => {
 
   it.skipIf(!hasScript)('on a terminal: a bar with runs done, failures and the time left, cleared before the summary', () => {
     const command = [process.execPath, BIN, 'sweep', recipePath, '--widths', '0.5:0.5:4', '--jobs', '1', '--error-solves', '0', '--out', join(dir, 'tty')].join(' ');
-    const r = spawnSync('script', ['-qefc', command, '/dev/null'], { encoding: 'utf8', timeout: 120_000 });
+    // NO_COLOR (which the test command sets when its own output is not a terminal) asks for plain lines.
+    const env = { ...process.env };
+    delete env.NO_COLOR;
+    const r = spawnSync('script', ['-qefc', command, '/dev/null'], { encoding: 'utf8', timeout: 120_000, env });
     expect(r.status, r.stdout).toBe(0);
     const frames = r.stdout.split('\r').filter((f) => f.startsWith('['));
     expect(frames.length).toBeGreaterThan(1);

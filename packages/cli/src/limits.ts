@@ -1,5 +1,10 @@
 import { DEFAULT_LIMITS, RecipeError, type PlanLimits } from '@edgewise/solver2d';
 import { UsageError } from './errors.ts';
+import type { OptionSpec } from './help.ts';
+
+function formatCount(n: number): string {
+  return n >= 1e5 ? n.toExponential().replace('e+', 'e') : String(n);
+}
 
 /**
  * The work limits a run is planned under, as command-line options: `--max-mesh-points N`
@@ -8,9 +13,15 @@ import { UsageError } from './errors.ts';
  * before any field is allocated, with what it would need and how to bring it down.
  */
 export const LIMIT_OPTIONS = {
-  'max-mesh-points': { type: 'string' },
-  'max-point-steps': { type: 'string' },
-} as const;
+  'max-mesh-points': {
+    type: 'string', value: 'N', defaultText: formatCount(DEFAULT_LIMITS.maxMeshPoints),
+    help: 'the most mesh points a run may have (memory: about 75 MiB + 130 bytes a point in 2D); a recipe over it is refused before any field is allocated, with what it would need',
+  },
+  'max-point-steps': {
+    type: 'string', value: 'N', defaultText: formatCount(DEFAULT_LIMITS.maxPointSteps),
+    help: 'the most mesh points × time steps a run may take (time: 5–25 ns each per species on one core)',
+  },
+} as const satisfies Record<string, OptionSpec>;
 
 export const LIMITS_USAGE = '[--max-mesh-points N] [--max-point-steps N]';
 
@@ -21,10 +32,6 @@ export const LIMITS_USAGE = '[--max-mesh-points N] [--max-point-steps N]';
 const CEILING: PlanLimits = { maxMeshPoints: 1e9, maxPointSteps: 1e15 };
 
 const OPTION: Record<keyof PlanLimits, string> = { maxMeshPoints: '--max-mesh-points', maxPointSteps: '--max-point-steps' };
-
-function formatCount(n: number): string {
-  return n >= 1e5 ? n.toExponential().replace('e+', 'e') : String(n);
-}
 
 function parseCount(text: string | undefined, key: keyof PlanLimits, what: string): number {
   const fallback = DEFAULT_LIMITS[key];

@@ -1,26 +1,46 @@
+import { readFileSync } from 'node:fs';
 import { RecipeError, SolverError } from '@edgewise/solver2d';
-import { mergeCommand, MERGE_USAGE } from './commands/merge.ts';
-import { runCommand, RUN_USAGE } from './commands/run.ts';
-import { schemaCommand, SCHEMA_USAGE } from './commands/schema.ts';
-import { spacingCommand, SPACING_USAGE } from './commands/spacing.ts';
-import { viewCommand, VIEW_USAGE } from './commands/view.ts';
-import { sweepCommand, SWEEP_USAGE } from './commands/sweep.ts';
 import { EnvironmentError, fileSystemError, InputError, UsageError } from './errors.ts';
+import { asksForHelp, helpText, type CommandSpec } from './help.ts';
 
 type Command = (args: string[]) => number | Promise<number>;
 
-/** Commands by name; each module owns its options and usage line. */
-const COMMANDS: Record<string, { run: Command; usage: string }> = {
-  run: { run: runCommand, usage: RUN_USAGE },
-  schema: { run: schemaCommand, usage: SCHEMA_USAGE },
-  spacing: { run: spacingCommand, usage: SPACING_USAGE },
-  view: { run: viewCommand, usage: VIEW_USAGE },
-  sweep: { run: sweepCommand, usage: SWEEP_USAGE },
-  merge: { run: mergeCommand, usage: MERGE_USAGE },
+/**
+ * Commands by name, each loaded only when called (a module of its own in the bundle), so that
+ * `run` does not pay for parsing what `sweep`, `view` or `schema` need; each module owns its
+ * options, usage and help. `summary` is the line the top-level help gives it.
+ */
+const COMMANDS: Record<string, { load: () => Promise<{ run: Command; spec: CommandSpec }>; summary: string }> = {
+  run: { load: async () => { const m = await import('./commands/run.ts'); return { run: m.runCommand, spec: m.RUN_SPEC }; }, summary: 'solve one recipe, print its results, write its run folder' },
+  sweep: { load: async () => { const m = await import('./commands/sweep.ts'); return { run: m.sweepCommand, spec: m.SWEEP_SPEC }; }, summary: 'a batch over window widths and recipe values, in parallel, in shards' },
+  spacing: { load: async () => { const m = await import('./commands/spacing.ts'); return { run: m.spacingCommand, spec: m.SPACING_SPEC }; }, summary: 'the narrowest masked stripe that keeps two junctions a gap apart' },
+  merge: { load: async () => { const m = await import('./commands/merge.ts'); return { run: m.mergeCommand, spec: m.MERGE_SPEC }; }, summary: "join a sharded sweep's shards into one sweep.csv and sweep.json" },
+  view: { load: async () => { const m = await import('./commands/view.ts'); return { run: m.viewCommand, spec: m.VIEW_SPEC }; }, summary: 'serve the viewer on 127.0.0.1 for a run or sweep folder' },
+  schema: { load: async () => { const m = await import('./commands/schema.ts'); return { run: m.schemaCommand, spec: m.SCHEMA_SPEC }; }, summary: 'print the JSON Schema of a recipe or of report.json' },
 };
 
-function usage(): string {
-  return ['usage:', ...Object.values(COMMANDS).map((c) => `  ${c.usage}`)].join('\n');
+/** The CLI package's version (package.json sits one level above both src/ and the bundle's dist/). */
+export function version(): string {
+  return (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
+}
+
+/** The top-level help: every command's usage line (each module loaded for it) and what it does. */
+async function topHelp(): Promise<string> {
+  const specs = await Promise.all(Object.values(COMMANDS).map(async (c) => ({ usage: (await c.load()).spec.usage, summary: c.summary })));
+  return [
+    'usage: edgewise COMMAND [ARGUMENTS] [OPTIONS]',
+    '       edgewise COMMAND --help     what a command does, its options and their defaults',
+    '',
+    'Lateral diffusion under a mask edge, in 2D cross-sections (and 3D corners).',
+    '',
+    'commands:',
+    ...specs.flatMap((c) => [`  ${c.usage}`, `      ${c.summary}`]),
+    '',
+    'options:',
+    '  -h, --help     print this help and exit',
+    '  -V, --version  print the version and exit',
+    '',
+  ].join('\n');
 }
 
 /**
@@ -56,14 +76,23 @@ export function strayFileSystemError(e: unknown): InputError | EnvironmentError 
 /** Runs one command; returns the exit code (0 ok, 2 bad input, 1 internal failure). */
 export async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
+  if (name === '--version' || name === '-V') {
+    process.stdout.write(`edgewise ${version()}\n`);
+    return 0;
+  }
   if (!name || name === '--help' || name === '-h' || name === 'help') {
-    process.stdout.write(`${usage()}\n`);
+    (name ? process.stdout : process.stderr).write(await topHelp());
     return name ? 0 : 2;
   }
-  const command = COMMANDS[name];
-  if (!command) {
-    process.stderr.write(`edgewise: unknown command ${JSON.stringify(name)} (commands: ${Object.keys(COMMANDS).join(', ')})\n`);
+  const entry = COMMANDS[name];
+  if (!entry) {
+    process.stderr.write(`edgewise: unknown command ${JSON.stringify(name)} (commands: ${Object.keys(COMMANDS).join(', ')}; edgewise --help says what each does)\n`);
     return 2;
+  }
+  const command = await entry.load();
+  if (asksForHelp(rest)) {
+    process.stdout.write(helpText(command.spec));
+    return 0;
   }
   try {
     return await command.run(rest);
@@ -77,7 +106,7 @@ export async function main(argv: string[]): Promise<number> {
       return 2;
     }
     if (e instanceof TypeError && (e as { code?: string }).code?.startsWith('ERR_PARSE_ARGS')) {
-      process.stderr.write(`edgewise ${name}: ${parseArgsMessage(e)} (usage: ${command.usage})\n`);
+      process.stderr.write(`edgewise ${name}: ${parseArgsMessage(e)} (usage: ${command.spec.usage})\n`);
       return 2;
     }
     if (e instanceof SolverError) {

@@ -1,6 +1,7 @@
 /**
  * Progress on stderr: a redrawn line on a terminal; on anything else a plain line at most
  * every few seconds, so logs stay readable. Nothing at all for work that ends quickly.
+ * The CLI writes no colour; its only terminal codes are this redraw.
  */
 export interface ProgressReporter {
   update(fraction: number, note?: string): void;
@@ -8,12 +9,21 @@ export interface ProgressReporter {
 }
 
 const QUIET_FOR_MS = 500;
+
+/**
+ * Whether `stream` may be drawn on with terminal codes (carriage return, erase line): only a
+ * terminal, and not when NO_COLOR is set (https://no-color.org: a non-empty value) or TERM is
+ * `dumb`, which ask for plain text.
+ */
+export function drawsOnTerminal(stream: { isTTY?: boolean }, env: NodeJS.ProcessEnv = process.env): boolean {
+  return stream.isTTY === true && !env.NO_COLOR && env.TERM !== 'dumb';
+}
 const PLAIN_EVERY_MS = 5000;
 
-export function progressReporter(stream: NodeJS.WriteStream | null, label: string): ProgressReporter {
+export function progressReporter(stream: Pick<NodeJS.WriteStream, 'isTTY' | 'write'> | null, label: string, env: NodeJS.ProcessEnv = process.env): ProgressReporter {
   if (!stream) return { update() {}, done() {} };
   const start = performance.now();
-  const tty = stream.isTTY === true;
+  const tty = drawsOnTerminal(stream, env);
   let last = 0;
   let drawn = false;
   return {

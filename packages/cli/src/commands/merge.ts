@@ -3,6 +3,7 @@ import { join, relative, resolve, sep } from 'node:path';
 import { parseArgs } from 'node:util';
 import { fileSystemError, InputError, UsageError } from '../errors.ts';
 import { inside, writeAtomic } from '../files.ts';
+import { HELP_OPTION, type CommandSpec } from '../help.ts';
 import { encodeCsv, parseCsv } from '../sweep/csv.ts';
 import { SWEEP_SCHEMA_ID, type SweepDocument, type SweepRunEntry } from '../sweep/record.ts';
 import { runFolderProblem } from '../sweep/resume.ts';
@@ -10,6 +11,16 @@ import { SHARD_FILE } from '../sweep/shard.ts';
 import { EXIT_RUNS_FAILED } from './sweep.ts';
 
 export const MERGE_USAGE = 'edgewise merge DIR… [--out DIR]';
+
+export const MERGE_SPEC = {
+  usage: MERGE_USAGE,
+  summary: 'Joins the shards of a sweep (sweep-shard-K-of-N.json and .csv, written by `edgewise sweep --shard K/N`) into one sweep.csv and sweep.json, after checking that all N shards of one sweep are there and that every run listed as ok is whole. Exit code 3 when some runs are not ok.',
+  arguments: [['DIR…', 'the folders the shards were written to']],
+  options: {
+    out: { type: 'string', value: 'DIR', help: 'the folder to write sweep.csv and sweep.json into', defaultText: 'the first DIR' },
+    ...HELP_OPTION,
+  },
+} as const satisfies CommandSpec;
 
 interface ShardFiles {
   folder: string;
@@ -64,10 +75,7 @@ function readShard(folder: string, name: string): ShardFiles {
  * into one sweep.csv and sweep.json, whose run folders are referred to where they lie.
  */
 export function mergeCommand(args: string[]): number {
-  const { values, positionals } = parseArgs({
-    args, allowPositionals: true, strict: true,
-    options: { out: { type: 'string' } },
-  });
+  const { values, positionals } = parseArgs({ args, allowPositionals: true, strict: true, options: MERGE_SPEC.options });
   if (positionals.length === 0) throw new UsageError(`merge takes the folders holding the shards (usage: ${MERGE_USAGE})`);
   const shards: ShardFiles[] = [];
   const seenFolders = new Set<string>();

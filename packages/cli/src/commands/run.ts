@@ -7,6 +7,7 @@ import { UsageError } from '../errors.ts';
 import { fmtLength, fmtPlusMinus, fmtRatio, fmtSci, table, terminalText } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits, withLimitHint } from '../limits.ts';
 import { checkWritable, inside, outFolder, removeEmptyFolders, writeAtomic } from '../files.ts';
+import { HELP_OPTION, type CommandSpec } from '../help.ts';
 import { writeRunFolder } from '../output.ts';
 import { progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
@@ -16,6 +17,31 @@ export const RUN_USAGE = `edgewise run RECIPE [--out DIR] [--error-solves 0|1|2]
 
 /** Coarser solves for the error bars: 1 (mesh 2h, formal order) or 2 (2h and 4h, measured order). */
 const DEFAULT_ERROR_SOLVES = 2;
+
+/** `--error-solves` and `--quiet`, as run, sweep and spacing take them. */
+export const ERROR_SOLVES_OPTION = {
+  'error-solves': {
+    type: 'string', value: '0|1|2', defaultText: String(DEFAULT_ERROR_SOLVES),
+    help: 'coarser solves for the error bars (±): 1 on a mesh twice as coarse (formal order 2), 2 on meshes 2 and 4 times as coarse (measured order, Richardson extrapolation), 0 for no error bars',
+  },
+} as const satisfies CommandSpec['options'];
+
+export const QUIET_OPTION = {
+  quiet: { type: 'boolean', default: false, help: 'print no progress on stderr (results still go to stdout); without it, a redrawn line on a terminal, a plain line every few seconds otherwise, no colour either way', defaultText: 'off' },
+} as const satisfies CommandSpec['options'];
+
+export const RUN_SPEC = {
+  usage: RUN_USAGE,
+  summary: 'Solves one recipe and its coarser error-bar solves, prints the results table (junction depth, lateral encroachment and reach, sheet and line resistance, spacing) on stdout and writes the run folder: report.json, field.npy, x.npy, z.npy, contour.csv, contour.svg and recipe.json. Exit codes: 0 ok, 2 bad input (one line naming the field), 1 internal failure.',
+  arguments: [['RECIPE', 'the recipe file: JSON, or YAML for .yaml/.yml (`edgewise schema recipe` prints its JSON Schema)']],
+  options: {
+    out: { type: 'string', value: 'DIR', help: 'the folder to write the run into (created; files in it are replaced atomically)', defaultText: 'out/<recipe file name>/' },
+    ...ERROR_SOLVES_OPTION,
+    ...LIMIT_OPTIONS,
+    ...QUIET_OPTION,
+    ...HELP_OPTION,
+  },
+} as const satisfies CommandSpec;
 
 /** `--error-solves`, for every command that takes it; `each` says per what ("per run" for a sweep). */
 export function parseErrorSolves(text: string | undefined, each = ''): 0 | 1 | 2 {
@@ -39,10 +65,7 @@ export function checkSweepSection(recipe: Recipe): void {
 }
 
 export function runCommand(args: string[]): number {
-  const { values, positionals } = parseArgs({
-    args, allowPositionals: true, strict: true,
-    options: { out: { type: 'string' }, 'error-solves': { type: 'string' }, quiet: { type: 'boolean', default: false }, ...LIMIT_OPTIONS },
-  });
+  const { values, positionals } = parseArgs({ args, allowPositionals: true, strict: true, options: RUN_SPEC.options });
   const errorSolves = parseErrorSolves(values['error-solves']);
   const limits = parseLimits(values);
   if (positionals.length !== 1) throw new UsageError(`run takes one recipe file (usage: ${RUN_USAGE})`);

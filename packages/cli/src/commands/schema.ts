@@ -1,8 +1,16 @@
 import { z } from 'zod';
 import { recipeSchema, reportJsonSchema, RECIPE_SCHEMA_ID } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
+import { HELP_OPTION, type CommandSpec } from '../help.ts';
 
 export const SCHEMA_USAGE = 'edgewise schema recipe|report';
+
+export const SCHEMA_SPEC = {
+  usage: SCHEMA_USAGE,
+  summary: 'Prints a JSON Schema on stdout, for an editor to check and complete files with.',
+  arguments: [['recipe', 'the schema of a recipe (edgewise.recipe/1)'], ['report', 'the schema of report.json (edgewise.report/1)']],
+  options: { ...HELP_OPTION },
+} as const satisfies CommandSpec;
 
 /** The JSON Schemas this command prints, by name. */
 const SCHEMAS: Record<string, () => Record<string, unknown>> = {

@@ -4,11 +4,12 @@ import {
   analyze, parseRecipe, planRecipe, searchStripeWithError, simulate, SPACING_SCHEMA_ID, StripeSearchError, type StripeSearchWithError,
 } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
+import { HELP_OPTION, type CommandSpec } from '../help.ts';
 import { checkWritable, inside, outFolder, writeAtomic } from '../files.ts';
 import { fmtLength, fmtPlusMinus, terminalText } from '../format.ts';
 import { writeRunFolder } from '../output.ts';
 import { readRecipeFile } from '../read-recipe.ts';
-import { checkSweepSection, parseErrorSolves } from './run.ts';
+import { checkSweepSection, ERROR_SOLVES_OPTION, parseErrorSolves, QUIET_OPTION } from './run.ts';
 
 export const SPACING_USAGE = 'edgewise spacing RECIPE --gap G [--tol T] [--out DIR] [--error-solves 0|1|2] [--quiet]';
 
@@ -27,15 +28,24 @@ function number(option: string, text: string | undefined, [lo, hi]: readonly [nu
   return v;
 }
 
-const OPTIONS = {
-  gap: { type: 'string' }, tol: { type: 'string' }, out: { type: 'string' },
-  'error-solves': { type: 'string' }, quiet: { type: 'boolean', default: false },
-} as const;
+export const SPACING_SPEC = {
+  usage: SPACING_USAGE,
+  summary: 'Finds, by bisection, the narrowest masked stripe between two windows of the recipe (its first two, or its one window twice; in 3D the distance between its first two rectangles) that keeps their junctions at least the gap apart, with an error bar from the same search on coarser meshes; writes spacing.json and the run folder of the pair at the answer.',
+  arguments: [['RECIPE', 'the recipe file: JSON, or YAML for .yaml/.yml']],
+  options: {
+    gap: { type: 'string', value: 'G', help: `the junction-to-junction gap to keep, µm, from ${GAP_RANGE_UM[0]} to ${GAP_RANGE_UM[1]} (required)` },
+    tol: { type: 'string', value: 'T', help: `the bisection's tolerance on the stripe, µm, from ${TOL_RANGE_UM[0]} to ${TOL_RANGE_UM[1]}`, defaultText: String(DEFAULT_TOL_UM) },
+    out: { type: 'string', value: 'DIR', help: 'the folder to write spacing.json and the run folder into', defaultText: 'out/<recipe file name>-spacing/' },
+    ...ERROR_SOLVES_OPTION,
+    quiet: { ...QUIET_OPTION.quiet, help: 'print nothing on stderr; without it, one line per solve of the search' },
+    ...HELP_OPTION,
+  },
+} as const satisfies CommandSpec;
 
 /** parseArgs, with its complaints (some span lines, e.g. "--gap -1") made into one line. */
 function parse(args: string[]) {
   try {
-    return parseArgs({ args, allowPositionals: true, strict: true, options: OPTIONS });
+    return parseArgs({ args, allowPositionals: true, strict: true, options: SPACING_SPEC.options });
   } catch (e) {
     if (!(e instanceof TypeError && (e as { code?: string }).code?.startsWith('ERR_PARSE_ARGS'))) throw e;
     const k = args.findIndex((a, i) => i > 0 && /^-\d/.test(a) && args[i - 1] in RANGES);

@@ -4,12 +4,13 @@ import { basename, extname, join, resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import { parseRecipe, type PlanLimits } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
+import { HELP_OPTION, type CommandSpec } from '../help.ts';
 import { inside, makeFolders, outFolder } from '../files.ts';
 import { fmtLength, fmtPlusMinus, fmtRatio, fmtSci, table } from '../format.ts';
 import { LIMIT_OPTIONS, LIMITS_USAGE, parseLimits } from '../limits.ts';
-import { progressReporter } from '../progress.ts';
+import { drawsOnTerminal, progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
-import { parseErrorSolves } from './run.ts';
+import { ERROR_SOLVES_OPTION, parseErrorSolves, QUIET_OPTION } from './run.ts';
 import type { RunRow } from '../sweep/csv.ts';
 import { buildMatrix, recipeForRun, type SweepMatrix, type SweepRun } from '../sweep/matrix.ts';
 import { workerBundle, WorkerPool } from '../sweep/pool.ts';
@@ -30,8 +31,31 @@ export const EXIT_INTERRUPTED = 130;
 export const EXIT_TERMINATED = 143;
 
 export const MAX_JOBS = 256;
+/** The shards a plan splits into when --shards is not given: one a run, at most this many. */
+export const DEFAULT_PLAN_SHARDS = 10;
 /** sweep.csv and sweep.json are rewritten at most this often while runs finish. */
 const RECORD_EVERY_MS = 1000;
+
+export const SWEEP_SPEC = {
+  usage: SWEEP_USAGE,
+  summary: 'Runs a batch of a recipe over window widths and any recipe values (a cartesian product of the parameters), in worker threads, and writes sweep.csv (one row per run, every per-window number with its error bar), sweep.json and one run folder per run. Exit codes: 0 every run ok, 2 bad input (nothing written), 3 some runs failed, 130 Ctrl-C, 143 SIGTERM.',
+  arguments: [['RECIPE', 'the recipe file: JSON, or YAML for .yaml/.yml; its own `sweep` key adds parameters (a flag replaces the same parameter)']],
+  options: {
+    widths: { type: 'string', value: 'RANGE', help: 'resize every window about its centre to each width, µm: a range start:step:stop, a list 1,2,4 or one number', defaultText: "the recipe's sweep.widthsUm, or no width parameter" },
+    set: { type: 'string', multiple: true, default: [], value: 'PATH=VALUES', help: "sweep any numeric field of the recipe, named by its path ('steps[1].minutes=30,60,120', 'mesh.refine=1,2'); values as for --widths", defaultText: "the recipe's sweep.set" },
+    out: { type: 'string', value: 'DIR', help: 'the folder to write sweep.csv, sweep.json and the run folders into', defaultText: 'out/<recipe file name>-sweep/' },
+    jobs: { type: 'string', value: 'N', help: `worker threads, 1 to ${MAX_JOBS} (with --plan: the cores each task asks for)`, defaultText: 'one per core; 1 with --plan' },
+    ...ERROR_SOLVES_OPTION,
+    resume: { type: 'boolean', default: false, help: 'skip every run whose folder already holds a finished run of the same recipe and error settings', defaultText: 'off: every run is solved' },
+    shard: { type: 'string', value: 'K/N|auto', help: "run only the K-th of N slices (runs K, K+N, …) and write sweep-shard-K-of-N.*; auto takes K and N from a Slurm array or a Kubernetes indexed job", defaultText: 'the whole sweep' },
+    shards: { type: 'string', value: 'N', help: 'the shard count: with --shard auto, for a Kubernetes indexed job; with --plan, the split', defaultText: `with --plan, one shard a run, at most ${DEFAULT_PLAN_SHARDS}` },
+    plan: { type: 'boolean', default: false, help: 'build and check every run, write nothing, and print the split and the Slurm and Kubernetes files that run the shards and merge them', defaultText: 'off' },
+    scheduler: { type: 'string', value: 'slurm|kubernetes', help: 'with --plan, print only that scheduler\'s file', defaultText: 'both' },
+    ...QUIET_OPTION,
+    ...LIMIT_OPTIONS,
+    ...HELP_OPTION,
+  },
+} as const satisfies CommandSpec;
 
 export function defaultSweepFolder(recipePath: string): string {
   return join('out', `${basename(recipePath, extname(recipePath))}-sweep`);
@@ -51,23 +75,7 @@ function errorText(e: unknown): string {
 }
 
 export async function sweepCommand(args: string[]): Promise<number> {
-  const { values, positionals } = parseArgs({
-    args, allowPositionals: true, strict: true,
-    options: {
-      widths: { type: 'string' },
-      set: { type: 'string', multiple: true, default: [] },
-      out: { type: 'string' },
-      jobs: { type: 'string' },
-      'error-solves': { type: 'string' },
-      resume: { type: 'boolean', default: false },
-      shard: { type: 'string' },
-      shards: { type: 'string' },
-      plan: { type: 'boolean', default: false },
-      scheduler: { type: 'string' },
-      quiet: { type: 'boolean', default: false },
-      ...LIMIT_OPTIONS,
-    },
-  });
+  const { values, positionals } = parseArgs({ args, allowPositionals: true, strict: true, options: SWEEP_SPEC.options });
   if (positionals.length !== 1) throw new UsageError(`sweep takes one recipe file (usage: ${SWEEP_USAGE})`);
   const recipePath = positionals[0];
   const jobs = parseJobs(values.jobs);
@@ -92,9 +100,6 @@ export async function sweepCommand(args: string[]): Promise<number> {
     await pool.close();
   }
 }
-
-/** The shards a plan splits into when --shards is not given: one a run, at most this many. */
-export const DEFAULT_PLAN_SHARDS = 10;
 
 /**
  * `--plan`: every run is built and checked as for a sweep, then the split and the scheduler
@@ -185,7 +190,7 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
     `${reused + finished}/${mine.length} runs, ${failed} failed`,
   );
   const say = (line: string) => {
-    if (!options.quiet) process.stderr.write(`${process.stderr.isTTY ? '\r\x1b[K' : ''}${line}\n`);
+    if (!options.quiet) process.stderr.write(`${drawsOnTerminal(process.stderr) ? '\r\x1b[K' : ''}${line}\n`);
   };
   const signals = new StopSignals(pool, say);
   const ticker = setInterval(report, 250);

@@ -2,20 +2,29 @@ import { existsSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { InputError, UsageError } from '../errors.ts';
+import { HELP_OPTION, type CommandSpec } from '../help.ts';
 import { ensureViewerBuilt, viewerRoot } from '../view-build.ts';
 import { startViewServer } from '../view-server.ts';
 
 export const VIEW_USAGE = 'edgewise view DIR [--recipe FILE] [--port N]';
+
+export const VIEW_SPEC = {
+  usage: VIEW_USAGE,
+  summary: 'Serves the viewer and the folder on 127.0.0.1 (building the viewer on first use), prints the address to open, and runs until Ctrl-C.',
+  arguments: [['DIR', 'a run folder, a sweep folder or a folder of runs']],
+  options: {
+    recipe: { type: 'string', value: 'FILE', help: 'the recipe the live re-run starts from', defaultText: "the folder's recipe.json" },
+    port: { type: 'string', value: 'N', help: 'the port to listen on, 0 to 65535 (0: any free port)', defaultText: '0' },
+    ...HELP_OPTION,
+  },
+} as const satisfies CommandSpec;
 
 /**
  * Serves the viewer and one run or sweep folder on 127.0.0.1, prints the address, and runs
  * until interrupted. --recipe gives the live mode its starting recipe.
  */
 export async function viewCommand(args: string[]): Promise<number> {
-  const { values, positionals } = parseArgs({
-    args, allowPositionals: true, strict: true,
-    options: { recipe: { type: 'string' }, port: { type: 'string' } },
-  });
+  const { values, positionals } = parseArgs({ args, allowPositionals: true, strict: true, options: VIEW_SPEC.options });
   if (positionals.length !== 1) throw new UsageError(`view takes one run or sweep folder (usage: ${VIEW_USAGE})`);
   const dir = positionals[0];
   if (!existsSync(dir) || !statSync(dir).isDirectory()) throw new InputError(`view: ${dir} is not a folder (give a run or sweep folder)`);
