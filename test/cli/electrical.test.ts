@@ -28,6 +28,7 @@ describe('electrical: bad input is one line, exit 2, nothing written', () => {
   const cases: [string, Record<string, unknown>, string][] = [
     ['a negative bias', recipe({ biasV: [5, -1] }), 'electrical.biasV[1]: must be a number from 0 to 5000 V (a reverse bias) (got -1)'],
     ['too long a bias list', recipe({ biasV: Array.from({ length: 17 }, (_, k) => k) }), 'electrical.biasV: must list at most 16 reverse biases'],
+    ['a negative spacing bias', recipe({ biasV: [5], spacingBiasV: -1 }), 'electrical.spacingBiasV: must be a number from 0 to 5000 V (a reverse bias) (got -1)'],
     ['a recipe with no junction', recipe({ biasV: [5] }, 'B'),
       'electrical: needs a junction to reverse-bias, but every dopant of the recipe is an acceptor like the substrate\'s: add a dopant of the other type or remove electrical'],
   ];
@@ -64,5 +65,25 @@ describe('electrical: a run reports and prints the electrical rules', () => {
     expect(w.errors?.breakdownV).not.toBeUndefined();
     expect(r.stdout).toMatch(/window +against +breakdown V +plane V +limited by/);
     expect(r.stdout).toMatch(/bias V +peak field V\/cm/);
+  });
+});
+
+describe('electrical: edgewise spacing gives the punch-through spacing next to the metallurgical one', () => {
+  it('writes punchThroughSpacingUm with its error bar to spacing.json and prints both rules', () => {
+    const path = join(dir, 'pair.json');
+    writeFileSync(path, JSON.stringify(recipe({ biasV: [0, 10], spacingBiasV: 3 })));
+    const out = join(dir, 'pair-out');
+    const r = edgewise(['spacing', path, '--gap', '0', '--tol', '0.02', '--error-solves', '1', '--out', out, '--quiet']);
+    expect(r.code, r.stderr).toBe(0);
+    const s = JSON.parse(readFileSync(join(out, 'spacing.json'), 'utf8'));
+    expect(s.punchThroughBiasV).toBe(3);
+    // Common practice (no source): the depletion regions need more room than the junctions.
+    expect(s.punchThroughSpacingUm).toBeGreaterThan(s.stripeUm);
+    expect(s.punchThroughSpacingErrorUm).toBeGreaterThan(0);
+    expect(s.punchThroughByMeshUm).toHaveLength(2);
+    expect(s.punchThroughBracketUm[1] - s.punchThroughBracketUm[0]).toBeLessThanOrEqual(0.02);
+    expect(s.punchThroughSolves.some((solve: { meets: boolean }) => !solve.meets)).toBe(true);
+    expect(r.stdout).toMatch(/spacing rule +stripe µm/);
+    expect(r.stdout).toMatch(/depletion regions apart at 3 V \(punch-through\) +[\d.]+ ± [\d.]+/);
   });
 });

@@ -65,7 +65,7 @@ export function thinnedAxis(axis: Float64Array, minUm: number): Int32Array {
 }
 
 /** Depletion width of a one-sided abrupt junction on doping N at V, µm (Sze & Ng (2007) ch. 2). */
-function abruptWidthUm(n: number, v: number): number {
+export function abruptWidthUm(n: number, v: number): number {
   return Math.sqrt((2 * SILICON_PERMITTIVITY_F_PER_CM * (v + 1)) / (ELEMENTARY_CHARGE_C * n)) * 1e4;
 }
 
@@ -74,7 +74,7 @@ function baligaGuess(n: number): { volts: number; widthUm: number } {
   return { volts: 5.34e13 * n ** -0.75, widthUm: 2.67e10 * n ** -0.875 * 1e4 };
 }
 
-interface ElectrostaticGrid {
+export interface ElectrostaticGrid {
   mesh: PoissonMesh;
   net: Float64Array;
 }
@@ -83,7 +83,7 @@ interface ElectrostaticGrid {
  * The diffusion mesh thinned to `minUm` and extended below its bottom to `depthUm`, with the
  * bottom row's doping (rows growing by 1.25 up to `largestUm` apart).
  */
-function electrostaticGrid(mesh: Mesh, net: Float64Array, minUm: number, depthUm: number, largestUm: number): ElectrostaticGrid {
+export function electrostaticGrid(mesh: Mesh, net: Float64Array, minUm: number, depthUm: number, largestUm: number): ElectrostaticGrid {
   const xi = thinnedAxis(mesh.x, minUm);
   const zi = thinnedAxis(mesh.z, minUm);
   const zs: number[] = Array.from(zi, (j) => mesh.z[j]);
@@ -104,7 +104,7 @@ function electrostaticGrid(mesh: Mesh, net: Float64Array, minUm: number, depthUm
 }
 
 /** Connected same-sign components: label of each node (n-type and p-type labelled apart). */
-function signComponents(net: Float64Array, nx: number, nz: number): { labels: Int32Array; bottom: Uint8Array } {
+export function signComponents(net: Float64Array, nx: number, nz: number): { labels: Int32Array; bottom: Uint8Array } {
   const positive = new Uint8Array(net.length);
   const negative = new Uint8Array(net.length);
   for (let k = 0; k < net.length; k++) {
@@ -120,7 +120,7 @@ function signComponents(net: Float64Array, nx: number, nz: number): { labels: In
   return { labels, bottom };
 }
 
-function nearestIndex(axis: Float64Array, v: number): number {
+export function nearestIndex(axis: Float64Array, v: number): number {
   let best = 0;
   for (let i = 1; i < axis.length; i++) if (Math.abs(axis[i] - v) < Math.abs(axis[best] - v)) best = i;
   return best;
@@ -163,27 +163,35 @@ export function electricalResults(mesh: Mesh, net: Float64Array, windows: readon
   return { windows: results, warnings, columns: nx, rows: nz, ...(options.keepProblems ? { problems } : {}) };
 }
 
-function finest(axis: Float64Array): number {
+export function finest(axis: Float64Array): number {
   let h = Infinity;
   for (let i = 1; i < axis.length; i++) h = Math.min(h, axis[i] - axis[i - 1]);
   return h;
 }
 
 function windowProblem(grid: ElectrostaticGrid, labels: Int32Array, label: number, x0: number, x1: number): JunctionProblem {
+  return regionsProblem(grid, labels, [label], [[x0, x1]]);
+}
+
+/**
+ * The Poisson problem with the regions `chosen` (labels of one type) held at the bias together,
+ * each contacted at the surface within the openings, against the contact at the bottom.
+ */
+export function regionsProblem(grid: ElectrostaticGrid, labels: Int32Array, chosen: readonly number[], openings: readonly (readonly [number, number])[]): JunctionProblem {
   const { nx, nz, x } = grid.mesh;
   const n = nx * nz;
-  const sign = grid.net[labels.indexOf(label)] > 0 ? 1 : -1;
+  const sign = grid.net[labels.indexOf(chosen[0])] > 0 ? 1 : -1;
   const biased = new Uint8Array(n);
   const shifted = new Uint8Array(n);
   const contact = new Uint8Array(n);
   for (let k = 0; k < n; k++) {
-    biased[k] = labels[k] === label ? 1 : 0;
+    biased[k] = chosen.includes(labels[k]) ? 1 : 0;
     const sameType = sign > 0 ? grid.net[k] > 0 : !(grid.net[k] > 0);
     shifted[k] = biased[k] === 1 || !sameType ? 1 : 0;
   }
   for (let i = 0; i < nx; i++) {
     contact[(nz - 1) * nx + i] = 1;
-    if (x[i] >= x0 && x[i] <= x1 && biased[i] === 1) contact[i] = 1;
+    if (biased[i] === 1 && openings.some(([x0, x1]) => x[i] >= x0 && x[i] <= x1)) contact[i] = 1;
   }
   return { mesh: grid.mesh, net: grid.net, contact, shifted, biased, sign: sign as 1 | -1 };
 }

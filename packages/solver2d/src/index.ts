@@ -14,6 +14,7 @@ export { coarseReports, coarsenedRecipe, withErrorBars, solveWithErrorBars } fro
 export { richardsonError, type ErrorEstimateSummary } from './error-bars.ts';
 export { searchStripe, searchStripeWithError, pairRecipe, StripeSearchError, type StripeSearch, type StripeSearchWithError, type StripeSolve } from './stripe-search.ts';
 export { reportSchema, reportJsonSchema } from './report-schema.ts';
+export { PunchThroughError, searchPunchThrough, searchPunchThroughWithError, spacingBiasOf, type PunchThroughSearch, type PunchThroughSearchWithError, type PunchThroughSolve } from './punch-through.ts';
 export { maskedStretches, windowOrder } from './mask.ts';
 export { SPACING_SCHEMA_ID, SWEEP_SCHEMA_ID } from './schema-ids.ts';
 export type { PairSpacing } from './spacing.ts';

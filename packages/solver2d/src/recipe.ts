@@ -232,12 +232,14 @@ const reverseBias = num('V (a reverse bias)', 0, MAX_BIAS_V);
 
 /**
  * The electrical rules at room temperature (electrical.ts): each window's region under the
- * reverse biases `biasV`.
+ * reverse biases `biasV`; `spacingBiasV` is the bias at which `edgewise spacing` finds the
+ * punch-through spacing (punch-through.ts; the largest of `biasV` when left out).
  */
 const electrical = strict({
   biasV: z.array(reverseBias, { error: explain(`a list of reverse biases, each from 0 to ${MAX_BIAS_V} V`) })
     .min(1, { error: 'must list at least one reverse bias in V' })
     .max(MAX_BIAS_POINTS, { error: `must list at most ${MAX_BIAS_POINTS} reverse biases` }),
+  spacingBiasV: reverseBias.optional(),
 });
 
 export const recipeSchema = strict({

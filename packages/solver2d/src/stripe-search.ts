@@ -75,7 +75,10 @@ export function pairRecipe(recipe: Recipe, stripeUm: number): Recipe {
 }
 
 function solvePair(recipe: Recipe, stripeUm: number, gapUm: number, limits?: PlanLimits, shouldStop?: () => boolean): StripeSolve {
-  const report = analyze(simulate(planRecipe(pairRecipe(recipe, stripeUm), limits), { shouldStop })).report;
+  // The junctions alone decide: the electrical rules of a trial pair would only cost time.
+  const { electrical: _electrical, ...pair } = pairRecipe(recipe, stripeUm);
+  void _electrical;
+  const report = analyze(simulate(planRecipe(pair, limits), { shouldStop })).report;
   // 3D: the masked distance between two rectangles, the gap between their outlines at the surface.
   const spacing = recipe.mask.rectangles ? pairSpacing3d(report, stripeUm) : report.spacings![0];
   const meets = !spacing.merged && spacing.minimumGapUm !== null && spacing.minimumGapUm >= gapUm;
@@ -89,25 +92,34 @@ export class StripeSearchError extends Error {
   }
 }
 
-export function searchStripe(recipe: Recipe, options: StripeSearchOptions): StripeSearch {
-  const { gapUm, toleranceUm } = options;
-  const solves: StripeSolve[] = [];
-  const run = (s: number) => {
-    const result = solvePair(recipe, s, gapUm, options.limits, options.shouldStop);
-    solves.push(result);
-    options.onSolve?.(result, solves.length - 1);
-    return result;
-  };
-  const done = (lo: number, hi: StripeSolve): StripeSearch => ({
-    gapUm, toleranceUm, stripeUm: hi.stripeUm, bracketUm: [lo, hi.stripeUm], spacing: hi.spacing, solves,
-    recipe: pairRecipe(recipe, hi.stripeUm),
-  });
-  // Without a guess: the junctions reach about plan.reachUm sideways from each mask edge.
-  const guess = options.guessUm ?? gapUm + 2 * planRecipe(recipe, options.limits).reachUm;
-  let reach = options.guessUm !== undefined ? Math.max(4 * toleranceUm, 0.05 * guess) : 0.5 * guess;
-  const first = run(Math.max(toleranceUm, guess));
+/** A solve at one stripe: whether it meets the rule the search is after. */
+export interface BisectionSolve {
+  stripeUm: number;
+  meets: boolean;
+}
+
+export interface BisectionOptions {
+  toleranceUm: number;
+  /** the first stripe solved, µm */
+  guessUm: number;
+  /** the first stride away from it, µm (doubled at each further stride) */
+  strideUm: number;
+  /** the complaint when no stripe within the widenings meets */
+  failure: (widestUm: number) => string;
+}
+
+/**
+ * The narrowest stripe that meets a rule which, once met, stays met for every wider stripe:
+ * from the guess, strides (growing) to a stripe that fails and one that meets, then bisection
+ * until the bracket is no wider than the tolerance. Returns the widest failing stripe seen
+ * (0 when the tolerance itself meets) and the narrowest meeting solve.
+ */
+export function bisectStripe<S extends BisectionSolve>(run: (stripeUm: number) => S, options: BisectionOptions): { lo: number; hi: S } {
+  const { toleranceUm } = options;
+  let reach = options.strideUm;
+  const first = run(Math.max(toleranceUm, options.guessUm));
   let lo: number;
-  let hi: StripeSolve;
+  let hi: S;
   if (first.meets) {
     // Walk narrower, in growing strides, until a stripe fails (or the tolerance itself meets).
     hi = first;
@@ -115,7 +127,7 @@ export function searchStripe(recipe: Recipe, options: StripeSearchOptions): Stri
       const s = run(Math.max(toleranceUm, hi.stripeUm - reach));
       if (!s.meets) { lo = s.stripeUm; break; }
       hi = s;
-      if (s.stripeUm <= toleranceUm) return done(0, hi);
+      if (s.stripeUm <= toleranceUm) return { lo: 0, hi };
       reach *= 2;
     }
   } else {
@@ -123,9 +135,7 @@ export function searchStripe(recipe: Recipe, options: StripeSearchOptions): Stri
     for (let k = 0; ; k++) {
       const s = run(lo + reach);
       if (s.meets) { hi = s; break; }
-      if (k >= MAX_WIDENINGS) {
-        throw new StripeSearchError(`no stripe up to ${s.stripeUm.toPrecision(4)} µm keeps a junction-to-junction gap of ${gapUm} µm`);
-      }
+      if (k >= MAX_WIDENINGS) throw new StripeSearchError(options.failure(s.stripeUm));
       lo = s.stripeUm;
       reach *= 2;
     }
@@ -135,7 +145,40 @@ export function searchStripe(recipe: Recipe, options: StripeSearchOptions): Stri
     if (s.meets) hi = s;
     else lo = s.stripeUm;
   }
-  return done(lo, hi);
+  return { lo, hi };
+}
+
+export function searchStripe(recipe: Recipe, options: StripeSearchOptions): StripeSearch {
+  const { gapUm, toleranceUm } = options;
+  const solves: StripeSolve[] = [];
+  const run = (s: number) => {
+    const result = solvePair(recipe, s, gapUm, options.limits, options.shouldStop);
+    solves.push(result);
+    options.onSolve?.(result, solves.length - 1);
+    return result;
+  };
+  // Without a guess: the junctions reach about plan.reachUm sideways from each mask edge.
+  const guess = options.guessUm ?? gapUm + 2 * planRecipe(recipe, options.limits).reachUm;
+  const strideUm = options.guessUm !== undefined ? Math.max(4 * toleranceUm, 0.05 * guess) : 0.5 * guess;
+  const { lo, hi } = bisectStripe(run, {
+    toleranceUm, guessUm: guess, strideUm,
+    failure: (widest) => `no stripe up to ${widest.toPrecision(4)} µm keeps a junction-to-junction gap of ${gapUm} µm`,
+  });
+  return {
+    gapUm, toleranceUm, stripeUm: hi.stripeUm, bracketUm: [lo, hi.stripeUm], spacing: hi.spacing, solves,
+    recipe: pairRecipe(recipe, hi.stripeUm),
+  };
+}
+
+/**
+ * Error bar of a stripe found on mesh h from the same search on meshes 2h (and 4h): Richardson's,
+ * plus the width of the final bisection bracket (the stripe on this mesh that just meets lies
+ * anywhere in it, so its width adds to the mesh error and keeps the bar above 0 where the
+ * coarser searches land on the same stripe). Null with no coarser search.
+ */
+export function stripeError(answers: readonly number[], bracketUm: readonly [number, number]): number | null {
+  const [f1, f2, f3] = answers;
+  return f2 === undefined ? null : Number((richardsonError(f1, f2, f3) + bracketUm[1] - bracketUm[0]).toPrecision(3));
 }
 
 export interface StripeSearchWithError extends StripeSearch {
@@ -159,11 +202,6 @@ export function searchStripeWithError(recipe: Recipe, options: StripeSearchOptio
     const coarse = searchStripe(coarsenedRecipe(recipe, level), { ...options, guessUm: answers[answers.length - 1] });
     answers.push(coarse.stripeUm);
   }
-  const [f1, f2, f3] = answers;
-  // The answer is the upper end of the final bracket: the stripe on this mesh that just meets
-  // lies anywhere in it, so its width adds to the mesh error (and keeps the bar above 0 where
-  // the coarser searches land on the same stripe).
-  const bracketUm = fine.bracketUm[1] - fine.bracketUm[0];
-  const stripeErrorUm = f2 === undefined ? null : Number((richardsonError(f1, f2, f3) + bracketUm).toPrecision(3));
+  const stripeErrorUm = stripeError(answers, fine.bracketUm);
   return { ...fine, stripeErrorUm, stripesByMeshUm: answers };
 }

@@ -1,12 +1,13 @@
 import { basename, extname, join } from 'node:path';
 import { parseArgs } from 'node:util';
 import {
-  analyze, parseRecipe, planRecipe, searchStripeWithError, simulate, SPACING_SCHEMA_ID, StripeSearchError, type StripeSearchWithError,
+  analyze, parseRecipe, planRecipe, PunchThroughError, searchPunchThroughWithError, searchStripeWithError, simulate, spacingBiasOf, SPACING_SCHEMA_ID,
+  StripeSearchError, type PunchThroughSearchWithError, type Recipe, type StripeSearchWithError,
 } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
 import { HELP_OPTION, type CommandSpec } from '../help.ts';
 import { checkWritable, inside, outFolder, writeAtomic } from '../files.ts';
-import { fmtLength, fmtPlusMinus, terminalText } from '../format.ts';
+import { fmtLength, fmtPlusMinus, table, terminalText } from '../format.ts';
 import { writeRunFolder } from '../output.ts';
 import { readRecipeFile } from '../read-recipe.ts';
 import { checkSweepSection, ERROR_SOLVES_OPTION, parseErrorSolves, QUIET_OPTION } from './run.ts';
@@ -85,7 +86,11 @@ export function spacingCommand(args: string[]): number {
     if (e instanceof StripeSearchError) throw new UsageError(`--gap: ${e.message}; ask for a smaller gap`);
     throw e;
   }
-  const analysis = analyze(simulate(planRecipe(result.recipe)));
+  const punch = punchThrough(recipe, toleranceUm, errorSolves, log);
+  // The pair's run folder shows its junctions; its electrical rules (a breakdown search per window) would cost more than the searches.
+  const { electrical: _electrical, ...pair } = result.recipe;
+  void _electrical;
+  const analysis = analyze(simulate(planRecipe(pair)));
   const seconds = (performance.now() - started) / 1000;
   const file = {
     schema: SPACING_SCHEMA_ID,
@@ -99,6 +104,14 @@ export function spacingCommand(args: string[]): number {
     crossSectionWidthUm: result.recipe.crossSection.widthUm,
     spacing: result.spacing,
     solves: result.solves.map((s) => ({ stripeUm: s.stripeUm, merged: s.spacing.merged, minimumGapUm: s.spacing.minimumGapUm, meets: s.meets })),
+    ...(punch ? {
+      punchThroughBiasV: punch.biasV,
+      punchThroughSpacingUm: punch.stripeUm,
+      punchThroughSpacingErrorUm: punch.stripeErrorUm,
+      punchThroughBracketUm: punch.bracketUm,
+      punchThroughByMeshUm: punch.stripesByMeshUm,
+      punchThroughSolves: punch.solves,
+    } : {}),
   };
   const written = writeRunFolder(out, analysis);
   writeAtomic(inside(out, 'spacing.json'), `${JSON.stringify(file, null, 2)}\n`);
@@ -108,8 +121,43 @@ export function spacingCommand(args: string[]): number {
     `${recipe.title ? `${terminalText(recipe.title)}\n` : ''}narrowest masked ${recipe.mask.rectangles ? 'distance between the two rectangles (corner to corner, or to an edge, as they face)' : 'stripe'} keeping a junction-to-junction gap ≥ ${gapUm} µm${recipe.mask.rectangles ? ' at the surface' : ''}: ${fmtPlusMinus(result.stripeUm, error)} µm`,
     `bisection to ${toleranceUm} µm: fails at ${fmtLength(result.bracketUm[0], 4)} µm, meets at ${fmtLength(result.bracketUm[1], 4)} µm (${result.solves.length} solves on the default mesh)`,
     `at that stripe: surface gap ${fmtLength(s.surfaceGapUm, 4)} µm, closest approach ${fmtLength(s.minimumGapUm, 4)} µm at depth ${fmtLength(s.minimumGapDepthUm, 4)} µm`,
-    error === null ? 'no error bar (--error-solves 0)' : `the same search on meshes ${result.stripesByMeshUm.map((_, k) => (k === 0 ? 'h' : `${2 ** k}h`)).join(', ')}: ${result.stripesByMeshUm.map((v) => v.toFixed(4)).join(', ')} µm (± from Richardson extrapolation)`,
+    error === null ? 'no error bar (--error-solves 0)' : `the same search on meshes ${meshNames(result.stripesByMeshUm)}: ${result.stripesByMeshUm.map((v) => v.toFixed(4)).join(', ')} µm (± from Richardson extrapolation)`,
+    ...(punch ? punchThroughLines(punch, result) : []),
     `${seconds.toFixed(1)} s; wrote ${out}/: spacing.json, ${written.join(', ')}`,
   ].join('\n') + '\n');
   return 0;
+}
+
+function meshNames(answers: readonly number[]): string {
+  return answers.map((_, k) => (k === 0 ? 'h' : `${2 ** k}h`)).join(', ');
+}
+
+/** With `electrical` in the recipe: the punch-through spacing at its spacing bias, searched as the stripe is. */
+function punchThrough(recipe: Recipe, toleranceUm: number, levels: 0 | 1 | 2, log: NodeJS.WriteStream | null): PunchThroughSearchWithError | null {
+  const biasV = spacingBiasOf(recipe);
+  if (biasV === null || recipe.mask.rectangles) return null;
+  let mesh = 'h';
+  try {
+    return searchPunchThroughWithError(recipe, {
+      biasV, toleranceUm, levels,
+      onLevel: (level) => { mesh = `${2 ** level}h`; },
+      onSolve: (s, k) => log?.write(`  punch-through at ${biasV} V, mesh ${mesh}, solve ${k + 1}: stripe ${s.stripeUm.toFixed(4)} µm → ${s.merged ? 'merged' : s.meets ? `apart, neutral gap ${fmtLength(s.neutralGapUm, 4)} µm at the surface` : 'depletion regions touch'}\n`),
+    });
+  } catch (e) {
+    if (e instanceof PunchThroughError) throw new UsageError(`electrical: ${e.message}`);
+    if (e instanceof StripeSearchError) throw new UsageError(`electrical.spacingBiasV: ${e.message}; ask for a lower bias`);
+    throw e;
+  }
+}
+
+/** The two spacings side by side: metallurgical (the gap asked) and electrical (punch-through). */
+function punchThroughLines(punch: PunchThroughSearchWithError, metallurgical: StripeSearchWithError): string[] {
+  return [
+    table(['spacing rule', 'stripe µm', 'bracket µm', 'on meshes h, 2h, … µm'], [
+      [`junctions ${metallurgical.gapUm} µm apart (metallurgical)`, fmtPlusMinus(metallurgical.stripeUm, metallurgical.stripeErrorUm),
+        `${fmtLength(metallurgical.bracketUm[0], 4)}–${fmtLength(metallurgical.bracketUm[1], 4)}`, metallurgical.stripesByMeshUm.map((v) => v.toFixed(4)).join(', ')],
+      [`depletion regions apart at ${punch.biasV} V (punch-through)`, fmtPlusMinus(punch.stripeUm, punch.stripeErrorUm),
+        `${fmtLength(punch.bracketUm[0], 4)}–${fmtLength(punch.bracketUm[1], 4)}`, punch.stripesByMeshUm.map((v) => v.toFixed(4)).join(', ')],
+    ]),
+  ];
 }
