@@ -2,7 +2,8 @@ import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { reportSchema } from '../../packages/solver2d/src/report-schema.ts';
-import { edgewise, tempDir } from '../support/cli.ts';
+import { biasLabels, csvHeader } from '../../packages/cli/src/sweep/csv.ts';
+import { edgewise, readCsv, tempDir } from '../support/cli.ts';
 import { rmSync } from 'node:fs';
 
 const dir = tempDir('edgewise-electrical-');
@@ -85,5 +86,45 @@ describe('electrical: edgewise spacing gives the punch-through spacing next to t
     expect(s.punchThroughSolves.some((solve: { meets: boolean }) => !solve.meets)).toBe(true);
     expect(r.stdout).toMatch(/spacing rule +stripe µm/);
     expect(r.stdout).toMatch(/depletion regions apart at 3 V \(punch-through\) +[\d.]+ ± [\d.]+/);
+  });
+});
+
+describe('electrical: sweep.csv has the electrical numbers, each with its error bar', () => {
+  it('adds breakdown and per-bias columns whose values are the run folders\' report.json', () => {
+    const path = join(dir, 'sweep.json');
+    writeFileSync(path, JSON.stringify(recipe({ biasV: [0, 5] })));
+    const out = join(dir, 'sweep-out');
+    const r = edgewise(['sweep', path, '--set', 'electrical.biasV[1]=5,10', '--error-solves', '0', '--jobs', '2', '--out', out, '--quiet']);
+    expect(r.code, r.stderr).toBe(0);
+    const rows = readCsv(join(out, 'sweep.csv'));
+    const header = Object.keys(rows[0]);
+    // The biases differ between the runs, so the per-bias columns are named by position.
+    const perBias = ['peakFieldVPerCm', 'peakFieldErrorVPerCm', 'depletionDepthUm', 'depletionDepthErrorUm', 'depletionLateralUm', 'depletionLateralErrorUm',
+      'areaCapacitanceFPerCm2', 'areaCapacitanceErrorFPerCm2', 'perimeterCapacitanceFPerCm', 'perimeterCapacitanceErrorFPerCm'];
+    expect(header.slice(header.indexOf('curvatureRadiusRightErrorUm') + 1)).toEqual([
+      'breakdownV', 'breakdownErrorV', 'breakdownPlaneV', 'breakdownPlaneErrorV', 'breakdownLimitedBy',
+      ...perBias.map((c) => `${c}@bias1`), ...perBias.map((c) => `${c}@bias2`), 'status', 'error',
+    ]);
+    const sweep = JSON.parse(readFileSync(join(out, 'sweep.json'), 'utf8'));
+    expect(sweep.electricalBiases).toEqual(['bias1', 'bias2']);
+    rows.forEach((row, k) => {
+      const e = JSON.parse(readFileSync(join(out, sweep.runs[k].dir, 'report.json'), 'utf8')).electrical;
+      const w = e.windows[0];
+      expect(e.biasV).toEqual([0, [5, 10][k]]);
+      expect(Number(row.breakdownV)).toBe(w.breakdownV);
+      expect(Number(row.breakdownErrorV)).toBe(w.errors.breakdownV);
+      expect(row.breakdownLimitedBy).toBe(w.breakdownLimitedBy);
+      expect(Number(row['peakFieldVPerCm@bias2'])).toBe(w.peakFieldVPerCm[1]);
+      expect(Number(row['perimeterCapacitanceErrorFPerCm@bias2'])).toBe(w.errors.perimeterCapacitanceFPerCm[1]);
+      expect(Number(row['depletionDepthUm@bias1'])).toBe(w.depletionDepthUm[0]);
+    });
+  });
+
+  it('names the per-bias columns by the bias where every run has the same, after each window\'s group', () => {
+    const header = csvHeader(['wUm'], 2, false, biasLabels([[0, 5], [0, 5]]));
+    expect(header).toContain('w1.peakFieldVPerCm@5V');
+    expect(header).toContain('w2.areaCapacitanceErrorFPerCm2@0V');
+    expect(header.indexOf('w1.breakdownLimitedBy')).toBeLessThan(header.indexOf('w2.junctionDepthUm'));
+    expect(biasLabels([[0, 5], [0, 10]])).toEqual(['bias1', 'bias2']);
   });
 });

@@ -165,6 +165,7 @@ async function runSweep(matrix: SweepMatrix, pool: WorkerPool, options: SweepOpt
     const doc: SweepDocument = {
       schema: SWEEP_SCHEMA_ID, title: matrix.title,
       parameters: matrix.parameters.map((p) => p.name), windows: matrix.windows, ...(matrix.rectangles ? { rectangles: true } : {}),
+      ...(matrix.electricalBiases ? { electricalBiases: matrix.electricalBiases } : {}),
       total: matrix.runs.length, shard, sweepSha256: matrix.sweepSha256, errorSolves: options.errorSolves,
       runs: mine.map((r, k) => ({
         id: r.id, dir: r.dir, values: r.values, status: ordered[k].status, error: ordered[k].error, recipeSha256: r.recipeSha256,

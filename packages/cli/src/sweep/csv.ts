@@ -5,7 +5,8 @@ import type { RectangleReport, Report, WindowReport } from '@edgewise/solver2d';
  * report's window (junction depth, lateral encroachment and lateral reach with its depth at
  * each edge, lateral/xj, surface concentration, sheet and line resistance, effective width,
  * drawn width plus lateral, edge radii), each measured one followed by its numerical error bar
- * (empty without error solves), then the run's status and error.
+ * (empty without error solves), then the electrical numbers where the recipe has them (below),
+ * then the run's status and error.
  * Quoting follows RFC 4180 (fields with a comma, quote or line break are quoted, quotes doubled).
  */
 type Measured =
@@ -56,7 +57,62 @@ const RECTANGLE_COLUMNS: readonly { name: string; field: string; error?: true }[
 ];
 
 /** One window's (2D) or one rectangle's (3D) results, by column field. */
-export type WindowResult = Partial<Record<string, number | null>> & { errors?: Partial<Record<string, number | null>> };
+export type WindowResult = Partial<Record<string, number | null>> & {
+  errors?: Partial<Record<string, number | null>>;
+  /** text results (breakdownLimitedBy) */
+  text?: Partial<Record<string, string | null>>;
+};
+
+/**
+ * With `electrical` in the recipe each window's group goes on with its breakdown (each with its
+ * error bar), what limits it, then per bias the peak field, the depletion depth and lateral
+ * reach and the area and perimeter capacitance, each with its error bar. A per-bias column ends
+ * in `@` and the bias's label (`peakFieldVPerCm@5V`; `@bias1`, … where the runs' biases differ).
+ * In a window's results the per-bias values sit under `field@k`, k the bias's position.
+ */
+const ELECTRICAL_SINGLE = ['breakdownV', 'breakdownPlaneV'] as const;
+const ELECTRICAL_PER_BIAS = ['peakFieldVPerCm', 'depletionDepthUm', 'depletionLateralUm', 'areaCapacitanceFPerCm2', 'perimeterCapacitanceFPerCm'] as const;
+/** The unit suffixes of the electrical fields, for their error columns (breakdownErrorV, peakFieldErrorVPerCm). */
+const ELECTRICAL_UNIT = /(VPerCm|FPerCm2|FPerCm|Um|V)$/;
+
+interface Column { name: string; field: string; error?: true; text?: true }
+
+function electricalColumns(biases: readonly string[]): Column[] {
+  const pair = (name: string, field: string) => [{ name, field }, { name: name.replace(ELECTRICAL_UNIT, 'Error$1'), field, error: true as const }];
+  return [
+    ...ELECTRICAL_SINGLE.flatMap((f) => pair(f, f)),
+    { name: 'breakdownLimitedBy', field: 'breakdownLimitedBy', text: true },
+    ...biases.flatMap((label, b) => ELECTRICAL_PER_BIAS.flatMap((f) => pair(f, `${f}@${b}`).map((c) => ({ ...c, name: `${c.name}@${label}` })))),
+  ];
+}
+
+/** A report's electrical numbers of window k as results keyed as the columns' fields. */
+function electricalResults(report: Report, k: number): WindowResult {
+  const w = report.electrical?.windows[k];
+  const out: WindowResult = {};
+  out.errors = {};
+  if (!w) return out;
+  out.breakdownV = w.breakdownV;
+  out.breakdownPlaneV = w.breakdownPlaneV;
+  out.text = { breakdownLimitedBy: w.breakdownLimitedBy };
+  const errors: Partial<Record<string, number | null>> = { breakdownV: w.errors?.breakdownV ?? null, breakdownPlaneV: w.errors?.breakdownPlaneV ?? null };
+  for (const f of ELECTRICAL_PER_BIAS) {
+    w[f].forEach((v, b) => {
+      out[`${f}@${b}`] = v;
+      errors[`${f}@${b}`] = w.errors?.[f]?.[b] ?? null;
+    });
+  }
+  out.errors = errors;
+  return out;
+}
+
+/** The labels of the per-bias columns: each bias in V where every run has the same list, else the positions. */
+export function biasLabels(lists: readonly (readonly number[])[]): string[] {
+  const [first] = lists;
+  const same = lists.every((l) => l.length === first.length && l.every((v, b) => v === first[b]));
+  const distinct = new Set(first).size === first.length;
+  return first.map((v, b) => (same && distinct ? `${v}V` : `bias${b + 1}`));
+}
 
 /** A 3D report's rectangles as rows of results. */
 export function rectangleResults(report: Report): WindowResult[] {
@@ -74,7 +130,15 @@ export function rectangleResults(report: Report): WindowResult[] {
 
 /** The results a report gives a sweep's rows: its windows, or its rectangles in 3D. */
 export function reportResults(report: Report): WindowResult[] {
-  return report.rectangles ? rectangleResults(report) : (report.windows as WindowReport[]) as unknown as WindowResult[];
+  if (report.rectangles) return rectangleResults(report);
+  const windows = (report.windows as WindowReport[]) as unknown as WindowResult[];
+  if (!report.electrical) return windows;
+  return windows.map((w, k) => {
+    const e = electricalResults(report, k);
+    const merged: WindowResult = { ...w, ...e };
+    merged.errors = { ...w.errors, ...e.errors };
+    return merged;
+  });
 }
 
 export type RunStatus = 'ok' | 'failed' | 'abandoned' | 'pending';
@@ -88,8 +152,13 @@ export interface RunRow {
   error: string | null;
 }
 
-export function csvHeader(parameters: readonly string[], windows: number, rectangles = false): string[] {
-  const names = (rectangles ? RECTANGLE_COLUMNS : COLUMNS).map((c) => c.name);
+function columnsOf(rectangles: boolean, biases: readonly string[] | undefined): readonly Column[] {
+  if (rectangles) return RECTANGLE_COLUMNS;
+  return biases ? [...COLUMNS, ...electricalColumns(biases)] : COLUMNS;
+}
+
+export function csvHeader(parameters: readonly string[], windows: number, rectangles = false, biases?: readonly string[]): string[] {
+  const names = columnsOf(rectangles, biases).map((c) => c.name);
   const prefix = rectangles ? 'r' : 'w';
   const metrics = windows === 1
     ? [...names]
@@ -104,11 +173,12 @@ export function numberCell(v: number | null | undefined): string {
   return a !== 0 && (a >= 1e6 || a < 1e-4) ? v.toExponential().replace('e+', 'e') : String(v);
 }
 
-export function csvRow(row: RunRow, parameters: readonly string[], windows: number, rectangles = false): string[] {
+export function csvRow(row: RunRow, parameters: readonly string[], windows: number, rectangles = false, biases?: readonly string[]): string[] {
   const metrics: string[] = [];
+  const columns = columnsOf(rectangles, biases);
   for (let k = 0; k < windows; k++) {
     const w = row.windows?.[k];
-    for (const c of rectangles ? RECTANGLE_COLUMNS : COLUMNS) metrics.push(numberCell(c.error ? w?.errors?.[c.field] : w?.[c.field]));
+    for (const c of columns) metrics.push(c.text ? w?.text?.[c.field] ?? '' : numberCell(c.error ? w?.errors?.[c.field] : w?.[c.field]));
   }
   return [String(row.id), ...parameters.map((p) => numberCell(row.values[p])), ...metrics, row.status, row.error ?? ''];
 }

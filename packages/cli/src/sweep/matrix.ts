@@ -1,5 +1,6 @@
 import { parseRecipe, planRecipe, RecipeError, windowOrder, type PlanLimits, type Recipe } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
+import { biasLabels } from './csv.ts';
 import { withLimitHint } from '../limits.ts';
 import { checkNumericPath, formatPath, parsePath, setAt, type Segment } from './fields.ts';
 import { recipeSha256, sha256 } from './hash.ts';
@@ -41,6 +42,8 @@ export interface SweepMatrix {
   windows: number;
   /** a 3D sweep: `windows` counts the recipe's rectangles */
   rectangles: boolean;
+  /** with `electrical`: the labels of the per-bias columns (csv.ts) */
+  electricalBiases?: string[];
   base: Record<string, unknown>;
 }
 
@@ -158,6 +161,7 @@ export function buildMatrix(input: unknown, request: SweepRequest): SweepMatrix 
     throw new UsageError(`the sweep would make ${total} runs (${parameters.map((p) => `${p.values.length} of ${p.name}`).join(' × ')}), more than the ${MAX_RUNS} allowed; split it into several sweeps`);
   }
   const runs: SweepRun[] = [];
+  const biasLists: number[][] = [];
   const counter = new Array<number>(parameters.length).fill(0);
   for (let id = 1; id <= total; id++) {
     const values: Record<string, number> = {};
@@ -166,7 +170,9 @@ export function buildMatrix(input: unknown, request: SweepRequest): SweepMatrix 
     const r = recipeForRun(base, parameters, values, others);
     let meshPoints: number;
     try {
-      const plan = withLimitHint(request.limits, () => planRecipe(parseRecipe(r), request.limits));
+      const parsed = parseRecipe(r);
+      if (parsed.electrical) biasLists.push(parsed.electrical.biasV);
+      const plan = withLimitHint(request.limits, () => planRecipe(parsed, request.limits));
       meshPoints = plan.mesh.nx * plan.mesh.nz;
     } catch (e) {
       if (e instanceof RecipeError) throw new UsageError(`sweep run ${id} (${describeValues(values)}): bad recipe: ${e.message}`);
@@ -184,6 +190,7 @@ export function buildMatrix(input: unknown, request: SweepRequest): SweepMatrix 
     title: recipe.title ?? null,
     windows: (recipe.mask.windows ?? recipe.mask.rectangles ?? []).length,
     rectangles: recipe.mask.rectangles !== undefined,
+    ...(biasLists.length > 0 ? { electricalBiases: biasLabels(biasLists) } : {}),
     base,
   };
 }

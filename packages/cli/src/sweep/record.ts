@@ -27,6 +27,8 @@ export interface SweepDocument {
   windows: number;
   /** true for a 3D sweep (mask.rectangles): the columns are each rectangle's depth and reaches */
   rectangles?: boolean;
+  /** with `electrical`: the labels of sweep.csv's per-bias columns ("5V", or "bias1" where the runs' biases differ) */
+  electricalBiases?: string[];
   /** runs in the whole sweep (all shards) */
   total: number;
   /** which slice of the sweep this file covers; null for a whole sweep */
@@ -40,7 +42,10 @@ export interface SweepDocument {
 
 /** Writes `<stem>.csv`, then `<stem>.json`; both atomic, so a reader sees an old or a new file, never half of one. */
 export function writeSweepFiles(folder: string, stem: string, doc: SweepDocument, rows: readonly RunRow[]): string[] {
-  const table = [csvHeader(doc.parameters, doc.windows, doc.rectangles), ...rows.map((r) => csvRow(r, doc.parameters, doc.windows, doc.rectangles))];
+  const table = [
+    csvHeader(doc.parameters, doc.windows, doc.rectangles, doc.electricalBiases),
+    ...rows.map((r) => csvRow(r, doc.parameters, doc.windows, doc.rectangles, doc.electricalBiases)),
+  ];
   writeAtomic(inside(folder, `${stem}.csv`), encodeCsv(table));
   writeAtomic(inside(folder, `${stem}.json`), `${JSON.stringify(doc, null, 2)}\n`);
   return [`${stem}.csv`, `${stem}.json`];
