@@ -13,7 +13,8 @@ import { placeCaptions } from './caption.ts';
 import { placeDimensionLabels } from './dimensions.ts';
 import { CutPanel } from './cut-panel.ts';
 import { placePlanLabels } from './plan-marks.ts';
-import { isVolumeRun, sectionRuns } from './sections3d.ts';
+import { RunTiles } from './run-tiles.ts';
+import { isVolumeRun, trueShape } from './sections3d.ts';
 import { PointerControls, type Mode } from './pointer.ts';
 import { Stage } from './stage.ts';
 import { Tile } from './tile.ts';
@@ -53,9 +54,8 @@ export class App {
   readonly stage: Stage;
   private data: DataSet | null = null;
   private tileList: Tile[] = [];
-  /** the live re-run and its tiles (a 3D run has several) */
-  private liveRun: RunData | null = null;
-  private liveTiles: Tile[] = [];
+  /** the loaded runs' and the live run's tiles (a 3D run has several) */
+  private readonly runTiles = new RunTiles((run) => new Tile(run, this.stage.colourMap));
   private modeNow: Mode = { kind: 'grid' };
   private grid: GridLayout | null = null;
   private layoutDirty = true;
@@ -129,14 +129,11 @@ export class App {
 
   /** Replaces the tiles: the old ones free their GPU memory first. */
   setData(data: DataSet): void {
-    for (const t of this.tileList) t.dispose();
-    this.liveRun = null;
-    this.liveTiles = [];
     this.data = data;
     this.modeNow = { kind: 'grid' };
     const started = performance.now();
     this.cuts.setRuns(data.runs);
-    this.tileList = sectionRuns(data.runs, this.cuts.choice).map((r) => new Tile(r, this.stage.colourMap));
+    this.tileList = this.runTiles.load(data.runs, this.cuts.choice);
     if (data.recipe !== null && data.recipe !== undefined) this.setLiveRecipe(data.recipe, `recipe.json in ${data.label}`);
     this.refreshQuantities();
     this.showProblems();
@@ -148,19 +145,9 @@ export class App {
 
   /** The 3D runs' sections anew, for the cuts chosen now (the 2D runs' tiles stay). */
   private showCuts(): void {
-    const loaded = this.tileList.filter((t) => !this.liveTiles.includes(t));
-    const kept = new Map(loaded.filter((t) => !t.run.section).map((t) => [t.run, t]));
-    for (const t of loaded) if (t.run.section) t.dispose();
-    this.tileList = sectionRuns(this.data?.runs ?? [], this.cuts.choice).map((r) => kept.get(r) ?? new Tile(r, this.stage.colourMap));
-    this.tileList.push(...this.liveTiles);
+    this.tileList = this.runTiles.recut(this.data?.runs ?? [], this.cuts.choice);
     if (this.modeNow.kind === 'focus') this.showGrid();
-    if (this.liveRun && isVolumeRun(this.liveRun)) this.setLiveRun(this.liveRun);
-    else this.applyStyle();
-  }
-
-  /** Depth drawn stretched as the panel says, except with sections of 3D runs: those are always true to shape. */
-  private stretch(): number {
-    return this.tileList.some((t) => t.run.section) ? 1 : this.panel.state.depthStretch;
+    this.applyStyle();
   }
 
   setLiveRecipe(recipe: unknown, label: string): void {
@@ -179,17 +166,12 @@ export class App {
 
   /** The live re-run's tiles in place of the last ones: one, or a 3D run's plan view and cuts. */
   private setLiveRun(run: RunData): void {
-    const old = this.liveTiles;
-    const focused = this.modeNow.kind === 'focus' && old.includes(this.modeNow.tile) ? this.modeNow.tile.run.id : null;
-    this.tileList = this.tileList.filter((t) => !old.includes(t));
-    for (const t of old) t.dispose();
-    this.liveRun = run;
+    const focused = this.modeNow.kind === 'focus' && this.runTiles.isLive(this.modeNow.tile) ? this.modeNow.tile.run.id : null;
     if (isVolumeRun(run) && !this.cuts.shown) this.cuts.setRuns([run]);
-    this.liveTiles = sectionRuns([run], this.cuts.choice).map((r) => new Tile(r, this.stage.colourMap));
-    this.tileList.push(...this.liveTiles);
+    this.tileList = this.runTiles.setLive(run, this.cuts.choice);
     this.refreshQuantities();
     this.applyStyle();
-    const again = this.liveTiles.find((t) => t.run.id === focused);
+    const again = this.tileList.find((t) => t.run.id === focused && this.runTiles.isLive(t));
     if (again && this.modeNow.kind === 'focus') this.focus(again, this.modeNow.pane, this.modeNow.depthUm);
     else if (focused !== null) this.showGrid();
     this.setEmpty(null);
@@ -238,8 +220,8 @@ export class App {
   }
 
   private layout(): void {
-    const { shown } = this.panel.state;
-    const a = arrange(this.tileList, this.modeNow, { area: this.area(), stretch: this.stretch(), edges: shown === 'edges', parameters: this.data?.parameters ?? [] });
+    const { depthStretch, shown } = this.panel.state;
+    const a = arrange(this.tileList, this.modeNow, { area: this.area(), stretch: trueShape(this.tileList, depthStretch), edges: shown === 'edges', parameters: this.data?.parameters ?? [] });
     this.grid = a.grid;
     this.el.scaleNote.textContent = this.tileList.length ? scaleNote(a, this.modeNow.kind === 'focus') : '';
     const toggle = this.el.shownToggle;
@@ -285,7 +267,7 @@ export class App {
 
   /** Focuses a pane of a tile (the whole cross-section when none is given). */
   focus(tile: Tile, pane: Pane = { x0Um: 0, x1Um: tile.widthUm }, depthUm = tile.depthUm): void {
-    const state = fitFocus(pane, depthUm, this.area(), this.stretch());
+    const state = fitFocus(pane, depthUm, this.area(), trueShape(this.tileList, this.panel.state.depthStretch));
     this.modeNow = { kind: 'focus', tile, pane, depthUm, state };
     this.el.back.hidden = false;
     this.invalidate(true);

@@ -159,6 +159,11 @@ export function sectionRuns(runs: readonly RunData[], choice: CutChoice = DEFAUL
   });
 }
 
+/** The depth stretch to draw with: the panel's, except that sections of 3D runs are always drawn true to shape. */
+export function trueShape(tiles: readonly { run: RunData }[], stretch: number): number {
+  return tiles.some((t) => t.run.section) ? 1 : stretch;
+}
+
 /** A corner as a choice's label: "rectangle 1, bottom-left (convex)". */
 export function cornerLabel(rectangle: number, corner: CornerName, kind: string): string {
   return `rectangle ${rectangle + 1}, ${cornerWords(corner)} (${kind})`;
