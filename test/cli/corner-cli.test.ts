@@ -39,7 +39,18 @@ describe('edgewise run on a 3D recipe', () => {
     const headerLength = npy.readUInt16LE(8);
     expect(npy.subarray(10, 10 + headerLength).toString('latin1')).toContain(`'shape': (${layers}, ${nz}, ${ny}, ${nx})`);
     expect(npy.length - 10 - headerLength).toBe(8 * layers * nz * ny * nx);
-    expect(readFileSync(join(out, 'plan.svg'), 'utf8')).toMatch(/<polyline/);
+    const svg = readFileSync(join(out, 'plan.svg'), 'utf8');
+    expect(svg).toMatch(/<polyline/);
+    // The inside corner of the L, (5, 5): its tick points where the reach was measured, into
+    // the empty quadrant (+x, +y; up and right on the drawing), not into the window.
+    const scale = Math.min(800 / 12, 800 / 10);
+    const [cx, cy] = [56 + 5 * scale, 40 + (10 - 5) * scale];
+    const ticks = [...svg.matchAll(/<line x1="([\d.]+)" y1="([\d.]+)" x2="([\d.]+)" y2="([\d.]+)"/g)].map((m) => m.slice(1).map(Number));
+    const diagonal = ticks.filter(([x1, y1, x2, y2]) => Math.hypot(x1 - cx, y1 - cy) < 0.02 && Math.abs(Math.abs(x2 - x1) - Math.abs(y2 - y1)) < 0.05);
+    expect(diagonal).toHaveLength(1);
+    const [x1, y1, x2, y2] = diagonal[0];
+    expect(Math.hypot(x2 - x1, y2 - y1) / scale).toBeCloseTo(report.rectangles[1].cornerReachUm.bottomRight, 3);
+    expect([x2 > x1, y2 < y1]).toEqual([true, true]);
   });
 });
 

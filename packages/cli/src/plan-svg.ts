@@ -19,6 +19,22 @@ function escapeXml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&apos;' })[c]!);
 }
 
+/** Whether (x, y) lies inside one of the report's rectangles. */
+function inWindow(report: Report, x: number, y: number): boolean {
+  return (report.rectangles ?? []).some((r) => x > r.x0Um && x < r.x1Um && y > r.y0Um && y < r.y1Um);
+}
+
+/**
+ * The direction the report measured a concave corner's reach along: into the one quadrant
+ * around it that no rectangle fills (analyze3d.ts), not the rectangle's own outward diagonal.
+ */
+function emptyQuadrant(report: Report, x: number, y: number, scaleUm: number): [number, number] | null {
+  const eps = 1e-6 * scaleUm;
+  const d = Math.SQRT1_2;
+  const quadrant = ([[1, 1], [-1, 1], [-1, -1], [1, -1]] as const).find(([sx, sy]) => !inWindow(report, x + eps * sx, y + eps * sy));
+  return quadrant ? [quadrant[0] * d, quadrant[1] * d] : null;
+}
+
 export function planSvg(report: Report): string {
   const widthUm = report.crossSection.widthUm;
   const lengthUm = report.crossSection.lengthUm ?? widthUm;
@@ -54,9 +70,13 @@ export function planSvg(report: Report): string {
       [r.cornerReachUm.bottomLeft, r.x0Um, r.y0Um, -d, -d], [r.cornerReachUm.bottomRight, r.x1Um, r.y0Um, d, -d],
       [r.cornerReachUm.topLeft, r.x0Um, r.y1Um, -d, d], [r.cornerReachUm.topRight, r.x1Um, r.y1Um, d, d],
     ];
+    for (const [k, name] of (['bottomLeft', 'bottomRight', 'topLeft', 'topRight'] as const).entries()) {
+      const c = corners[k];
+      const turned = r.cornerKind[name] === 'concave' ? emptyQuadrant(report, c[1], c[2], Math.max(widthUm, lengthUm)) : null;
+      if (turned) [c[3], c[4]] = turned;
+    }
     for (const [reach, x, y, ux, uy] of [...edges, ...corners]) {
       if (reach === null) continue;
-      // A concave corner's ray points the other way: its direction is where the junction was found.
       out.push(`<line x1="${px(X(x))}" y1="${px(Y(y))}" x2="${px(X(x + ux * reach))}" y2="${px(Y(y + uy * reach))}" stroke="#2166ac" stroke-width="1"/>`);
     }
   }
