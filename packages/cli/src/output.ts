@@ -5,6 +5,15 @@ import { encodeNpy, inside, writeAtomic } from './files.ts';
 import { planSvg } from './plan-svg.ts';
 import { contourSvg } from './svg.ts';
 
+/** The files of the electrical rules' cross-sections (DEVELOPERS.md), in a run folder whose recipe has `electrical`. */
+export const ELECTRICAL_FILES = {
+  potential: 'electrical-potential.npy',
+  field: 'electrical-field.npy',
+  depletion: 'electrical-depletion.npy',
+  x: 'electrical-x.npy',
+  z: 'electrical-z.npy',
+} as const;
+
 /**
  * The files of one run folder (contracts in DEVELOPERS.md): `dir` inside the output folder
  * `root`, which no file may leave (files.ts, inside). Returns the names written.
@@ -33,6 +42,15 @@ export function writeRunFolder(root: string, analysis: Analysis, dir = ''): stri
   put('z.npy', encodeNpy(mesh.z, [mesh.nz]));
   put('contour.csv', contourCsv(analysis));
   put('contour.svg', contourSvg(report));
+  const e = analysis.electricalFields;
+  if (e) {
+    // The electrical rules' cross-sections, [windows, biases, nz, nx] on their own grid.
+    put(ELECTRICAL_FILES.potential, encodeNpy(e.potentialV, e.shape));
+    put(ELECTRICAL_FILES.field, encodeNpy(e.fieldVPerCm, e.shape));
+    put(ELECTRICAL_FILES.depletion, encodeNpy(e.depletion, e.shape));
+    put(ELECTRICAL_FILES.x, encodeNpy(e.x, [e.x.length]));
+    put(ELECTRICAL_FILES.z, encodeNpy(e.z, [e.z.length]));
+  }
   // The report last: its presence marks a complete folder.
   put('report.json', `${JSON.stringify(report, null, 2)}\n`);
   return written;

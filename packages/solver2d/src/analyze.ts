@@ -155,7 +155,11 @@ export function analyze(sim: Simulation): Analysis {
     field: { layers: field.names, shape: [field.names.length, mesh.nz, mesh.nx] },
     warnings,
   };
-  if (recipe.electrical) report.electrical = electricalReport(mesh, field.layers.net.data, plan.mask.windows, { biasV: recipe.electrical.biasV }, report.warnings);
+  if (recipe.electrical) {
+    const { fields, ...electrical } = electricalReport(mesh, field.layers.net.data, plan.mask.windows, { biasV: recipe.electrical.biasV, keepFields: true }, report.warnings);
+    report.electrical = electrical;
+    return { report, field, grid, ...(fields ? { electricalFields: fields } : {}) };
+  }
   return { report, field, grid };
 }
 

@@ -1,6 +1,6 @@
 import { FieldLines, searchBreakdown } from './breakdown.ts';
-import { depletionDepthUm, depletionReachUm } from './depletion.ts';
-import { PoissonSolver, poissonMesh, SILICON_PERMITTIVITY_F_PER_CM, ELEMENTARY_CHARGE_C, type JunctionProblem, type PoissonMesh } from './electrostatics.ts';
+import { depletionDepthUm, depletionReachUm, recovery } from './depletion.ts';
+import { electricField, PoissonSolver, poissonMesh, SILICON_PERMITTIVITY_F_PER_CM, ELEMENTARY_CHARGE_C, type JunctionProblem, type PoissonMesh } from './electrostatics.ts';
 import { VAN_OVERSTRAETEN_DE_MAN, type IonisationModel } from './ionisation.ts';
 import type { Mesh } from './mesh.ts';
 import { areaCapacitanceFPerCm2, planeProblem } from './plane-junction.ts';
@@ -26,6 +26,24 @@ export interface ElectricalOptions {
   skipBreakdown?: boolean;
   /** keep each window's Poisson problem in the result (for a benchmark) */
   keepProblems?: boolean;
+  /** keep the potential, field and depletion of every window and bias (for the files a run writes) */
+  keepFields?: boolean;
+}
+
+/**
+ * The solved cross-sections, each `[windows, biases, nz, nx]` row-major on the electrostatic
+ * grid (`x`, `z`, nodes, µm); NaN where a window has no junction or a bias did not converge.
+ */
+export interface ElectricalFields {
+  x: Float64Array;
+  z: Float64Array;
+  shape: [number, number, number, number];
+  /** electrostatic potential ψ, V (0 at the intrinsic level of the grounded side's Fermi level) */
+  potentialV: Float64Array;
+  /** |E|, V/cm */
+  fieldVPerCm: Float64Array;
+  /** majority carriers over |net doping| − ½, clipped to [−½, 9.5]: the depletion edge is its zero contour (depletion.ts) */
+  depletion: Float64Array;
 }
 
 export interface WindowElectrical {
@@ -48,6 +66,8 @@ export interface ElectricalResult {
   warnings: string[];
   /** each window's problem, with `keepProblems` */
   problems?: (JunctionProblem | null)[];
+  /** with `keepFields` */
+  fields?: ElectricalFields;
   /** the electrostatic mesh, nodes */
   columns: number;
   rows: number;
@@ -143,7 +163,8 @@ export function electricalResults(mesh: Mesh, net: Float64Array, windows: readon
   const components = signComponents(grid.net, nx, nz);
   const warnings: string[] = [];
   const problems: (JunctionProblem | null)[] = [];
-  const results = windows.map(([x0, x1]) => {
+  const fields = options.keepFields ? emptyFields(grid.mesh, windows.length, biases.length) : undefined;
+  const results = windows.map(([x0, x1], w) => {
     const centre = 0.5 * (x0 + x1);
     const ic = nearestIndex(grid.mesh.x, centre);
     const label = components.labels[ic];
@@ -153,14 +174,15 @@ export function electricalResults(mesh: Mesh, net: Float64Array, windows: readon
     }
     const problem = windowProblem(grid, components.labels, label, x0, x1);
     problems.push(problem);
-    const result = solveWindow(grid, problem, ic, x0, x1, mesh.widthUm, biases, model, warnings, options.skipBreakdown === true);
+    const keep = fields ? (solver: PoissonSolver, b: number) => keepBias(fields, solver, w, b) : null;
+    const result = solveWindow(grid, problem, ic, x0, x1, mesh.widthUm, biases, model, warnings, options.skipBreakdown === true, keep);
     // The region below: substrate if it reaches the bottom.
     let j = 0;
     while (j < nz && components.labels[j * nx + ic] === label) j++;
     result.biasAgainst = j < nz && components.bottom[components.labels[j * nx + ic]] === 1 ? 'substrate' : 'well';
     return result;
   });
-  return { windows: results, warnings, columns: nx, rows: nz, ...(options.keepProblems ? { problems } : {}) };
+  return { windows: results, warnings, columns: nx, rows: nz, ...(options.keepProblems ? { problems } : {}), ...(fields ? { fields } : {}) };
 }
 
 export function finest(axis: Float64Array): number {
@@ -196,7 +218,27 @@ export function regionsProblem(grid: ElectrostaticGrid, labels: Int32Array, chos
   return { mesh: grid.mesh, net: grid.net, contact, shifted, biased, sign: sign as 1 | -1 };
 }
 
-function solveWindow(grid: ElectrostaticGrid, problem: JunctionProblem, ic: number, x0: number, x1: number, widthUm: number, biases: number[], model: IonisationModel, warnings: string[], skipBreakdown: boolean): WindowElectrical {
+function emptyFields(mesh: PoissonMesh, windows: number, biases: number): ElectricalFields {
+  const n = windows * biases * mesh.nz * mesh.nx;
+  const make = () => new Float64Array(n).fill(NaN);
+  return { x: mesh.x, z: mesh.z, shape: [windows, biases, mesh.nz, mesh.nx], potentialV: make(), fieldVPerCm: make(), depletion: make() };
+}
+
+/** Copies window w's solution at bias b into the fields. */
+function keepBias(fields: ElectricalFields, solver: PoissonSolver, w: number, b: number): void {
+  const cells = solver.n;
+  const at = (w * fields.shape[1] + b) * cells;
+  fields.potentialV.set(solver.psi, at);
+  const ex = new Float64Array(cells);
+  const ez = new Float64Array(cells);
+  const magnitude = new Float64Array(cells);
+  electricField(solver.problem.mesh, solver.psi, ex, ez, magnitude);
+  fields.fieldVPerCm.set(magnitude, at);
+  for (let k = 0; k < cells; k++) fields.depletion[at + k] = solver.problem.biased[k] === 1 ? -0.5 : recovery(solver, k);
+}
+
+function solveWindow(grid: ElectrostaticGrid, problem: JunctionProblem, ic: number, x0: number, x1: number, widthUm: number, biases: number[], model: IonisationModel, warnings: string[], skipBreakdown: boolean,
+  keep: ((solver: PoissonSolver, b: number) => void) | null): WindowElectrical {
   const { nx, nz, z } = grid.mesh;
   const solver = new PoissonSolver(problem);
   const lines = new FieldLines(grid.mesh);
@@ -212,13 +254,14 @@ function solveWindow(grid: ElectrostaticGrid, problem: JunctionProblem, ic: numb
   let ok = solver.solve(0).converged && (planeSolver?.solve(0).converged ?? false);
   if (!ok) warnings.push(`electrostatics of the ${where} did not converge at 0 V`);
   const edges = (x0 > 0 ? 1 : 0) + (x1 < widthUm ? 1 : 0);
-  for (const v of biases) {
+  for (const [b, v] of biases.entries()) {
     if (ok) ok = solver.continueTo(v).converged && planeSolver!.continueTo(v).converged;
     if (!ok) {
       warnings.push(`electrostatics of the ${where} did not converge at ${v} V: its results are null`);
       for (const list of [out.peakFieldVPerCm, out.peakFieldAtUm, out.depletionDepthUm, out.depletionLateralUm, out.areaCapacitanceFPerCm2, out.perimeterCapacitanceFPerCm]) list.push(null);
       continue;
     }
+    keep?.(solver, b);
     lines.update(solver.psi);
     const peak = lines.peak();
     const pi = peak.k % nx;
@@ -286,13 +329,14 @@ function difference(a: number | null, b: number | null): number | null {
  * doping step between nodes makes the scheme first order; measured 5.6, 2.8, 1.4, 0.7 % in a
  * plane breakdown at h = 0.2 … 0.025 µm).
  */
-export function electricalReport(mesh: Mesh, net: Float64Array, windows: readonly (readonly [number, number])[], options: ElectricalOptions, warnings: string[]): ElectricalReport {
+export function electricalReport(mesh: Mesh, net: Float64Array, windows: readonly (readonly [number, number])[], options: ElectricalOptions, warnings: string[]): ElectricalReport & { fields?: ElectricalFields } {
   const h = options.minSpacingUm ?? 2.5 * Math.min(finest(mesh.x), finest(mesh.z));
   const fine = electricalResults(mesh, net, windows, { ...options, minSpacingUm: h });
-  const coarse = electricalResults(mesh, net, windows, { ...options, minSpacingUm: 2 * h });
+  const coarse = electricalResults(mesh, net, windows, { ...options, minSpacingUm: 2 * h, keepFields: false });
   warnings.push(...fine.warnings);
   const model = options.model ?? VAN_OVERSTRAETEN_DE_MAN;
   return {
+    ...(fine.fields ? { fields: fine.fields } : {}),
     biasV: [...options.biasV],
     ionisation: model.source,
     mesh: { columns: fine.columns, rows: fine.rows, smallestSpacingUm: rounded(h, 4)! },

@@ -1,4 +1,4 @@
-import type { ElectricalReport } from './electrical.ts';
+import type { ElectricalFields, ElectricalReport } from './electrical.ts';
 import type { ReportResults, WindowResults } from './engineering.ts';
 import type { Field } from './field.ts';
 import type { NodeGrid, Polyline } from './junction.ts';
@@ -132,4 +132,6 @@ export interface Analysis {
   report: Report;
   field: Field;
   grid: NodeGrid;
+  /** the solved cross-sections of the electrical rules, when the recipe asks for them */
+  electricalFields?: ElectricalFields;
 }

@@ -1,5 +1,6 @@
 import { REPORT_SCHEMA_ID, SWEEP_SCHEMA_ID, type Report } from '@edgewise/solver2d';
 import type { SectionInfo } from './cuts3d.ts';
+import { loadElectrical, type ElectricalData } from './electrical-data.ts';
 import { parseNpy } from './npy.ts';
 
 /**
@@ -48,6 +49,8 @@ export interface RunData {
   y?: Float64Array;
   /** a section of a 3D run drawn as a tile (sections3d.ts): what it shows */
   section?: SectionInfo;
+  /** the electrical rules' cross-sections, when the run has them (electrical-data.ts) */
+  electrical?: ElectricalData;
 }
 
 export interface DataSet {
@@ -153,7 +156,8 @@ export async function loadRun(source: FileSource, dir: string, id: string, value
     if (!Number.isFinite(field.data[k])) throw new FileProblem(fieldFile, `value ${k} is ${field.data[k]}, not a finite number`);
   }
   if (y) return { id, dir, values, report: r, x: x.data, y: y.data, z: z.data, field: field.data, layers: r.field.layers };
-  return { id, dir, values, report: r, x: x.data, z: z.data, field: field.data, layers: r.field.layers };
+  const electrical = await loadElectrical(r, (name) => source.read(join(dir, name)), (name, reason) => new FileProblem(join(dir, name), reason));
+  return { id, dir, values, report: r, x: x.data, z: z.data, field: field.data, layers: r.field.layers, ...(electrical ? { electrical } : {}) };
 }
 
 interface SweepEntry {

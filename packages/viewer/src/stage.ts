@@ -25,6 +25,8 @@ export class Stage {
   width = 1;
   height = 1;
   frames = 0;
+  /** drawn into each view of each tile before its contours and axes (the electrical overlay) */
+  underlay: ((ctx: CanvasRenderingContext2D, tile: Tile, view: TileView) => void) | null = null;
 
   constructor(readonly container: HTMLElement) {
     this.canvas = document.createElement('canvas');
@@ -89,6 +91,7 @@ export class Stage {
     ctx.clearRect(0, 0, this.width, this.height);
     for (const tile of tiles) {
       tile.views.forEach((v, k) => {
+        this.underlay?.(ctx, tile, v);
         if (tile.showContours) drawContours(ctx, v, tile.contours);
         drawTileAxes(ctx, v, tile.widthUm, tile.depthUm, k === 0, tile.run.section);
         for (const d of tile.dimensions) if (viewShowsEdge(v, d)) drawDimension(ctx, v, d);

@@ -1,4 +1,5 @@
 import type { App, Timing } from './app.ts';
+import type { ElectricalState } from './electrical-overlay.ts';
 import { pan, zoomAbout } from './layout.ts';
 import type { PanelState } from './panel.ts';
 import type { CutChoice } from './sections3d.ts';
@@ -27,6 +28,12 @@ export class TestHooks {
   /** Moves the cuts through 3D runs, as the panel's "3D cuts" folder does. */
   setCuts(choice: Partial<CutChoice>): Promise<void> {
     this.app.cuts.set(choice);
+    return this.app.nextFrame();
+  }
+
+  /** Sets the electrical overlay, as the panel's "electrical" folder does. */
+  setElectrical(options: Partial<ElectricalState>): Promise<void> {
+    this.app.electrical.set(options);
     return this.app.nextFrame();
   }
 

@@ -1,6 +1,7 @@
 import { closeSync, existsSync, fstatSync, openSync, readFileSync, readSync, rmSync } from 'node:fs';
 import { basename, join } from 'node:path';
 import { reportSchema, type Report } from '@edgewise/solver2d';
+import { ELECTRICAL_FILES } from '../output.ts';
 import { reportResults, type WindowResult } from './csv.ts';
 import { recipeSha256 } from './hash.ts';
 import { RECIPE_FILE } from './task.ts';
@@ -98,6 +99,18 @@ export function runFolderProblem(folder: string, expectedSha256: string, errorSo
   for (const name of NPY_FILES) {
     const problem = npyProblem(join(folder, name), shapes[name]);
     if (problem) return fail(problem);
+  }
+  const e = report.electrical;
+  if (e) {
+    const cross = [e.windows.length, e.biasV.length, e.mesh.rows, e.mesh.columns];
+    const electricalShapes: [string, number[]][] = [
+      [ELECTRICAL_FILES.potential, cross], [ELECTRICAL_FILES.field, cross], [ELECTRICAL_FILES.depletion, cross],
+      [ELECTRICAL_FILES.x, [e.mesh.columns]], [ELECTRICAL_FILES.z, [e.mesh.rows]],
+    ];
+    for (const [name, shape] of electricalShapes) {
+      const problem = npyProblem(join(folder, name), shape);
+      if (problem) return fail(problem);
+    }
   }
   const csv = read('contour.csv');
   if (csv === null || !csv.startsWith('junction,point,xUm,zUm\n') || !csv.endsWith('\n')) return fail('contour.csv is missing or cut short');

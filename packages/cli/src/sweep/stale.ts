@@ -1,6 +1,7 @@
 import { lstatSync, readdirSync, rmdirSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileSystemError } from '../errors.ts';
+import { ELECTRICAL_FILES } from '../output.ts';
 import { TEMPORARY } from '../files.ts';
 import { inShard, type Shard } from './shard.ts';
 import { RECIPE_FILE } from './task.ts';
@@ -9,7 +10,7 @@ import { RECIPE_FILE } from './task.ts';
 const RUN_FOLDER = /^run-(\d+)$/;
 
 /** Files a sweep writes into a run folder, 2D or 3D (output.ts and the marker); its temporary names are files.ts's TEMPORARY. */
-const RUN_FILES = new Set(['field.npy', 'x.npy', 'y.npy', 'z.npy', 'contour.csv', 'contour.svg', 'plan.svg', 'report.json', RECIPE_FILE]);
+const RUN_FILES = new Set(['field.npy', 'x.npy', 'y.npy', 'z.npy', 'contour.csv', 'contour.svg', 'plan.svg', 'report.json', RECIPE_FILE, ...Object.values(ELECTRICAL_FILES)]);
 
 export interface StaleFolders {
   /** run folders of an earlier sweep, removed */
