@@ -31,6 +31,10 @@ describe('edgewise run on a 3D recipe', () => {
     const report = JSON.parse(readFileSync(join(out, 'report.json'), 'utf8'));
     expect(report.rectangles).toHaveLength(2);
     expect(report.rectangles[1].cornerKind.bottomRight).toBe('concave');
+    // The bar's top edge has its middle at (5, 5), the L's inside corner: no straight edge there,
+    // so no edge reach (a ray up from it would run along the other rectangle's side).
+    expect(report.rectangles[0].edgeReachUm.top).toBeNull();
+    expect(report.rectangles[1].edgeReachUm.right).toBeGreaterThan(0);
     expect(typeof report.rectangles[0].errors.cornerReachUm.bottomRight).toBe('number');
     expect(report.plan.outlines.length).toBeGreaterThan(0);
     const [layers, nz, ny, nx] = report.field.shape;

@@ -78,8 +78,14 @@ function rectangleReport(space: Space3d, grid: NodeGrid, indicator: Float64Array
   const xm = 0.5 * (x0 + x1);
   const ym = 0.5 * (y0 + y1);
   const depth = depthUnder(space, indicator, xm, ym, column);
+  // An edge's middle counts where it lies on a straight stretch of the outline: window behind
+  // it and mask ahead, on either side of it along the edge (the middle of an L's long inner
+  // edge can be the inside corner, where a ray along the normal runs down the other edge).
+  const side = (x: number, y: number, nx: number, ny: number, ahead: number, along: number) =>
+    inWindow(all, x + eps * (ahead * nx - along * ny), y + eps * (ahead * ny + along * nx));
   const edge = (x: number, y: number, nx: number, ny: number): number | null =>
-    inWindow(all, x - eps * nx, y - eps * ny) && !inWindow(all, x + eps * nx, y + eps * ny) ? reachFrom(space, grid, x, y, nx, ny, step) : null;
+    side(x, y, nx, ny, -1, -1) && side(x, y, nx, ny, -1, 1) && !side(x, y, nx, ny, 1, -1) && !side(x, y, nx, ny, 1, 1)
+      ? reachFrom(space, grid, x, y, nx, ny, step) : null;
   const edgeReachUm: Record<EdgeName, number | null> = {
     left: edge(x0, ym, -1, 0), right: edge(x1, ym, 1, 0), bottom: edge(xm, y0, 0, -1), top: edge(xm, y1, 0, 1),
   };

@@ -72,7 +72,7 @@ const rectangleReport = z.strictObject({
   x1Um: z.number(),
   y1Um: z.number(),
   junctionDepthUm: length.describe('shallowest junction below the rectangle\'s centre, µm'),
-  edgeReachUm: edgeLengths.describe('reach of the surface junction beyond each edge at its middle, along the outward normal, µm; null where that middle is not on the window\'s outline'),
+  edgeReachUm: edgeLengths.describe('reach of the surface junction beyond each edge at its middle, along the outward normal, µm; null where that middle is not on a straight stretch of the window\'s outline'),
   cornerReachUm: cornerLengths.describe('reach beyond each corner along the diagonal pointing away from the window, µm; null where it is not a corner of the outline'),
   cornerKind: z.strictObject({ bottomLeft: cornerKind, bottomRight: cornerKind, topLeft: cornerKind, topRight: cornerKind }),
   cornerToEdgeRatio: cornerLengths.describe('each corner\'s reach over the mean of the rectangle\'s edge reaches'),

@@ -23,7 +23,8 @@ export interface RectangleReport {
   /** shallowest junction below the rectangle's centre, µm; null if there is none */
   junctionDepthUm: number | null;
   /** reach of the surface junction beyond each edge at its middle, along the outward normal, µm;
-   *  null where that middle is not on the window's outline (an edge shared with a touching rectangle) */
+   *  null where that middle is not on a straight stretch of the window's outline (an edge shared
+   *  with a touching rectangle, or a middle at an inside corner) */
   edgeReachUm: Record<EdgeName, number | null>;
   /** reach beyond each corner along the diagonal pointing away from the window, µm; null where
    *  the corner is not a corner of the window's outline */
