@@ -70,8 +70,7 @@ export class App {
   private readonly pointer: PointerControls;
   /** where the cuts through 3D runs go */
   readonly cuts: CutPanel;
-  /** potential or field at a bias, and the depletion edges, of runs with electrical rules */
-  readonly electrical: ElectricalOverlay;
+  readonly electrical: ElectricalOverlay; // potential or field at a bias, depletion edges
 
   constructor(private readonly el: PageElements) {
     this.stage = new Stage(el.view);
@@ -90,8 +89,7 @@ export class App {
       },
     });
     this.cuts = new CutPanel(this.panel.gui.addFolder('3D cuts'), () => this.showCuts());
-    this.electrical = new ElectricalOverlay(this.panel.gui.addFolder('electrical'), this.stage.colourMapBytes, () => this.applyStyle());
-    this.stage.underlay = (ctx, tile, view) => this.electrical.draw(ctx, tile, view);
+    this.electrical = new ElectricalOverlay(this.panel.gui.addFolder('electrical'), this.stage, () => this.applyStyle());
     new ResizeObserver(() => this.invalidate(true)).observe(el.view);
     this.pointer = new PointerControls(el.view, el.readout, this);
     window.addEventListener('keydown', (e) => {
@@ -138,7 +136,6 @@ export class App {
     this.modeNow = { kind: 'grid' };
     const started = performance.now();
     this.cuts.setRuns(data.runs);
-    this.electrical.setRuns(data.runs);
     this.tileList = this.runTiles.load(data.runs, this.cuts.choice);
     if (data.recipe !== null && data.recipe !== undefined) this.setLiveRecipe(data.recipe, `recipe.json in ${data.label}`);
     this.refreshQuantities();
@@ -195,10 +192,7 @@ export class App {
     const style = this.panel.style(() => automaticRange(this.tileList, this.panel.state.quantity));
     for (const t of this.tileList) t.applyStyle(style);
     drawColourBar(this.el.colourBar, this.stage.colourMapBytes, style.range, layerLabel(style.layer));
-    if (this.electrical.active) {
-      this.electrical.updateRange(this.tileList);
-      this.electrical.drawBar(this.el.colourBar);
-    }
+    this.electrical.restyle(this.tileList, this.el.colourBar);
     this.invalidate(true);
   }
 

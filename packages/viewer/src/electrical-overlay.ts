@@ -4,6 +4,7 @@ import { zeroContours } from '@edgewise/solver2d';
 import { colourAt } from './colormap.ts';
 import type { ElectricalData } from './electrical-data.ts';
 import type { RunData } from './load.ts';
+import type { Stage } from './stage.ts';
 import { formatTick, niceTicks } from './ticks.ts';
 import type { Tile } from './tile.ts';
 import type { TileView } from './tile-view.ts';
@@ -63,7 +64,14 @@ export class ElectricalOverlay {
   private readonly edgeCache = new WeakMap<RunData, { key: string; lines: Float64Array[] }>();
   private range: [number, number] = [0, 1];
 
-  constructor(readonly folder: GUI, private readonly colourMap: Uint8Array, private readonly changed: () => void) {
+  private readonly colourMap: Uint8Array;
+  /** the electrical data the options were offered for */
+  private offeredFor: ElectricalData | undefined;
+
+  /** Draws under each tile's contours on the stage; `changed` restyles the page. */
+  constructor(readonly folder: GUI, stage: Stage, private readonly changed: () => void) {
+    this.colourMap = stage.colourMapBytes;
+    stage.underlay = (ctx, tile, view) => this.draw(ctx, tile, view);
     const s = this.state;
     folder.add(s, 'colourBy', { 'doping (as above)': 'doping', 'potential, V': 'potential', '|field|, V/cm': 'field' }).name('colour by').onChange(changed);
     this.bias = folder.add(s, 'bias', { '—': 0 }).name('reverse bias').onChange(changed);
@@ -72,9 +80,18 @@ export class ElectricalOverlay {
     folder.hide();
   }
 
-  /** Offers the biases and windows of the runs that have electrical data; hides the folder when none has. */
-  setRuns(runs: readonly RunData[]): void {
-    const first = runs.find((r) => r.electrical)?.electrical;
+  /** After the tiles or the style changed: the options offered for the tiles' runs, and the colour bar when active. */
+  restyle(tiles: readonly Tile[], bar: HTMLElement): void {
+    const first = tiles.find((t) => t.run.electrical)?.run.electrical;
+    if (first !== this.offeredFor) this.offer(first);
+    if (!this.active) return;
+    this.updateRange(tiles);
+    this.drawBar(bar);
+  }
+
+  /** Offers the biases and windows of the first run with electrical data; hides the folder when there is none. */
+  private offer(first: ElectricalData | undefined): void {
+    this.offeredFor = first;
     if (!first) {
       this.state.colourBy = 'doping';
       this.folder.hide();
