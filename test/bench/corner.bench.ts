@@ -21,7 +21,7 @@ if (child === 'solve') {
   const { analyze, coarseReports, parseRecipe, planRecipe, simulate } = await import('../../packages/solver2d/src/index.ts');
   const { readRecipeFile } = await import('../../packages/cli/src/read-recipe.ts');
   const t0 = performance.now();
-  const plan = planRecipe(parseRecipe(readRecipeFile('examples/corner-square.json')));
+  const plan = planRecipe(parseRecipe(await readRecipeFile('examples/corner-square.json')));
   const sim = simulate(plan);
   const analysis = analyze(sim);
   const t1 = performance.now();

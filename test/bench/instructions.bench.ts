@@ -19,6 +19,6 @@ if (!file || (model !== 'intrinsic' && model !== 'charged-defect') || !(reps >= 
   process.stderr.write('usage: instructions.bench.ts RECIPE intrinsic|charged-defect REPS\n');
   process.exit(2);
 }
-const plans = modelPlans(readRecipeFile(resolve(file)));
+const plans = modelPlans(await readRecipeFile(resolve(file)));
 const plan = model === 'charged-defect' ? plans.nonlinear : plans.linear;
 for (let r = 0; r < 3 + reps; r++) simulate(plan);

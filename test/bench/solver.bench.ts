@@ -73,8 +73,8 @@ console.log('nonlinear profile (the deeper one); CPU time, best of 8 runs taken 
 {
   const cases: [string, unknown][] = [
     ['reference, boron at p/ni ≈ 8', referenceRecipe({}, {}, 'charged-defect')],
-    ...['base-resistor.json', 'boron-base.json', 'arsenic-source-drain.json', 'phosphorus-well.yaml']
-      .map((f): [string, unknown] => [`examples/${f}`, readRecipeFile(join(process.cwd(), 'examples', f))]),
+    ...await Promise.all(['base-resistor.json', 'boron-base.json', 'arsenic-source-drain.json', 'phosphorus-well.yaml']
+      .map(async (f): Promise<[string, unknown]> => [`examples/${f}`, await readRecipeFile(join(process.cwd(), 'examples', f))])),
   ];
   const cpuMs = (f: () => unknown) => {
     const t0 = process.cpuUsage();
@@ -127,8 +127,8 @@ console.log('each on the mesh size planned with the models on; CPU time, best of
 {
   const OFF = { phosphorusKink: false, clustering: false, ted: false, oxidationEnhanced: false };
   const cases: [string, Record<string, unknown>][] = [
-    ...['base-resistor.json', 'boron-base.json', 'arsenic-source-drain.json', 'phosphorus-well.yaml']
-      .map((f): [string, Record<string, unknown>] => [`examples/${f}`, readRecipeFile(join(process.cwd(), 'examples', f)) as Record<string, unknown>]),
+    ...await Promise.all(['base-resistor.json', 'boron-base.json', 'arsenic-source-drain.json', 'phosphorus-well.yaml']
+      .map(async (f): Promise<[string, Record<string, unknown>]> => [`examples/${f}`, await readRecipeFile(join(process.cwd(), 'examples', f)) as Record<string, unknown>])),
     ['emitter: P 3e20 cm^-3, 850 °C 20 min', {
       substrate: { dopant: 'B', concentrationCm3: 1e16 }, crossSection: { widthUm: 5 }, mask: { windows: [[0, 2]] },
       steps: [{ kind: 'predeposition', dopant: 'P', surfaceConcentrationCm3: 3e20, temperatureC: 850, minutes: 20 }],

@@ -1,5 +1,4 @@
 import { readFileSync } from 'node:fs';
-import { RecipeError, SolverError } from '@edgewise/solver2d';
 import { EnvironmentError, fileSystemError, InputError, UsageError } from './errors.ts';
 import { asksForHelp, helpText, type CommandSpec } from './help.ts';
 
@@ -97,6 +96,9 @@ export async function main(argv: string[]): Promise<number> {
   try {
     return await command.run(rest);
   } catch (e) {
+    // The solver's error classes, from the chunk the command has loaded already (main.mjs
+    // itself stays small: --version and --help do not load the solver).
+    const { RecipeError, SolverError } = await import('@edgewise/solver2d');
     if (e instanceof RecipeError) {
       process.stderr.write(`edgewise: bad recipe: ${e.message}\n`);
       return 2;

@@ -1,6 +1,6 @@
 import { closeSync, constants, fstatSync, openSync, readSync, statSync, type Stats } from 'node:fs';
 import { extname } from 'node:path';
-import { isMap, isPair, isScalar, isSeq, parseAllDocuments, type Document } from 'yaml';
+import type { Document } from 'yaml';
 import { fileSystemError, InputError } from './errors.ts';
 
 /** Largest recipe file accepted; a recipe is a few kilobytes. */
@@ -16,12 +16,24 @@ const RECIPE_DEPTH = 5;
 /** YAML aliases a recipe may expand (the yaml library's count, which weighs each by its size). */
 const MAX_YAML_ALIASES = 100;
 
-/** Reads a recipe file (JSON, or YAML for .yaml/.yml) into plain data: objects, lists, text, numbers, booleans, null. */
-export function readRecipeFile(path: string): unknown {
+type Yaml = typeof import('yaml');
+
+/**
+ * Reads a recipe file (JSON, or YAML for .yaml/.yml) into plain data: objects, lists, text,
+ * numbers, booleans, null. The YAML library is loaded only for a YAML file: a JSON recipe's
+ * run does not parse it (it is a fifth of the CLI's code).
+ */
+export async function readRecipeFile(path: string): Promise<unknown> {
   const text = readText(path);
   const yaml = ['.yaml', '.yml'].includes(extname(path).toLowerCase());
-  const value = yaml ? parseYamlRecipe(path, text) : parseJsonRecipe(path, text);
+  const value = yaml ? parseYamlRecipe(path, text, await loadYaml()) : parseJsonRecipe(path, text);
   return plainCopy(path, value);
+}
+
+/** The YAML library; bundled, its CommonJS build arrives as the default export. */
+async function loadYaml(): Promise<Yaml> {
+  const loaded = await import('yaml');
+  return typeof loaded.parseAllDocuments === 'function' ? loaded : (loaded as unknown as { default: Yaml }).default;
 }
 
 function readText(path: string): string {
@@ -221,10 +233,10 @@ function lowerFirst(s: string): string {
   return s.charAt(0).toLowerCase() + s.slice(1);
 }
 
-function parseYamlRecipe(path: string, text: string): unknown {
+function parseYamlRecipe(path: string, text: string, yaml: Yaml): unknown {
   const fail = (what: string) => new InputError(`${path}: is not valid YAML: ${what}`);
   // Keys given twice are found below, to name them and where they sit; the library's own check says neither.
-  const docs = parseAllDocuments(text, { logLevel: 'silent', uniqueKeys: false });
+  const docs = yaml.parseAllDocuments(text, { logLevel: 'silent', uniqueKeys: false });
   if (!Array.isArray(docs) || docs.length === 0) throw new InputError(`${path}: is empty (nothing but comments)`);
   if (docs.length > 1) throw fail(`holds ${docs.length} documents (each "---" line starts one); a recipe is one`);
   const doc = docs[0];
@@ -235,7 +247,7 @@ function parseYamlRecipe(path: string, text: string): unknown {
     }
     throw fail(lowerFirst(problem.message.split('\n')[0].replace(/:\s*$/, '')));
   }
-  const twice = repeatedYamlKey(doc);
+  const twice = repeatedYamlKey(doc, yaml);
   if (twice) throw repeatedKeyError(path, text, twice);
   try {
     return doc.toJS({ maxAliasCount: MAX_YAML_ALIASES });
@@ -255,7 +267,7 @@ function parseYamlRecipe(path: string, text: string): unknown {
  * recipe check, which knows no such key. Aliases are not followed (their anchor is walked
  * where it stands), nor is nesting deeper than MAX_RECIPE_DEPTH, which plainCopy refuses.
  */
-function repeatedYamlKey(doc: Document.Parsed): RepeatedKey | null {
+function repeatedYamlKey(doc: Document.Parsed, { isMap, isPair, isScalar, isSeq }: Yaml): RepeatedKey | null {
   let found: RepeatedKey | null = null;
   const stack: { node: unknown; path: (string | number)[] }[] = [{ node: doc.contents, path: [] }];
   while (stack.length > 0) {

@@ -134,8 +134,13 @@ export class AdiStepper {
   private readonly xVariable: VariableSetup;
   private readonly zVariable: VariableSetup;
 
-  constructor(mesh: Mesh, mask: Mask) {
-    primeOnce(primeKernels);
+  /**
+   * `variableD`: whether the solve will call stepVariable (a concentration-dependent D, or D
+   * per node from a point-defect model); its kernels are primed only then.
+   */
+  constructor(mesh: Mesh, mask: Mask, { variableD = true }: { variableD?: boolean } = {}) {
+    primeOnce(primeConstantKernels);
+    if (variableD) primeOnce(primeVariableKernels);
     const { nx, nz, x, dx, z, dzVolume } = mesh;
     this.nx = nx;
     this.nz = nz;
@@ -355,13 +360,40 @@ export class AdiStepper {
 }
 
 /**
- * Runs every path of both steppers, held and sealed, in both schemes, PRIMING_CALLS times on
- * a tiny cross-section (13 × 10 points: blocks of four lines, mixed blocks and remainders),
- * once per thread (primeOnce). Costs about a millisecond.
+ * Runs every path of the constant-D stepper, held and sealed, in both schemes, PRIMING_CALLS
+ * times on a tiny cross-section (13 × 10 points: blocks of four lines, mixed blocks and
+ * remainders), once per thread (primeOnce).
  */
-function primeKernels(): void {
+function primeConstantKernels(): void {
+  const { stepper, c } = primingCase(false);
+  for (let r = 0; r < PRIMING_CALLS; r++) {
+    for (const scheme of ['peaceman-rachford', 'split-implicit'] as const) {
+      stepper.holdSurface(c, 1.5e20);
+      stepper.step(c, 1.5e-3, scheme, true, 1.5e20);
+      stepper.step(c, 1.5e-3, scheme, false, 0);
+    }
+    stepper.content(c);
+    stepper.bottomRowFinite(c);
+  }
+}
+
+/** The same for the variable-D stepper, with and without uniform lines, once per thread (primeOnce). */
+function primeVariableKernels(): void {
+  const { stepper, c, nu, uniform } = primingCase(true);
+  for (let r = 0; r < PRIMING_CALLS; r++) {
+    for (const scheme of ['peaceman-rachford', 'split-implicit'] as const) {
+      stepper.holdSurface(c, 1.5e20);
+      stepper.stepVariable(c, nu, scheme, true, 1.5e20);
+      stepper.stepVariable(c, nu, scheme, false, 0);
+      stepper.stepVariable(c, nu, scheme, true, 1.5e20, uniform);
+      stepper.stepVariable(c, nu, scheme, false, 0, uniform);
+    }
+  }
+}
+
+function primingCase(variableD: boolean) {
   const mesh = buildMesh(uniformAxis(1.3, 13), uniformAxis(0.9, 9));
-  const stepper = new AdiStepper(mesh, buildMask(mesh, [[0.35, 0.85]]));
+  const stepper = new AdiStepper(mesh, buildMask(mesh, [[0.35, 0.85]]), { variableD });
   const c = new Float64Array(mesh.nx * mesh.nz);
   const nu = new Float64Array(mesh.nx * mesh.nz);
   for (let k = 0; k < nu.length; k++) nu[k] = 1.5e-3 * (1 + (k % 3) * 0.25);
@@ -374,19 +406,7 @@ function primeKernels(): void {
   for (let j = 0; j < mesh.nz; j++) {
     for (let i = 0; i < mesh.nx; i++) if (uniform.rows[j] === 1 || uniform.columns[i] === 1) nu[j * mesh.nx + i] = uniform.nu;
   }
-  for (let r = 0; r < PRIMING_CALLS; r++) {
-    for (const scheme of ['peaceman-rachford', 'split-implicit'] as const) {
-      stepper.holdSurface(c, 1.5e20);
-      stepper.step(c, 1.5e-3, scheme, true, 1.5e20);
-      stepper.step(c, 1.5e-3, scheme, false, 0);
-      stepper.stepVariable(c, nu, scheme, true, 1.5e20);
-      stepper.stepVariable(c, nu, scheme, false, 0);
-      stepper.stepVariable(c, nu, scheme, true, 1.5e20, uniform);
-      stepper.stepVariable(c, nu, scheme, false, 0, uniform);
-    }
-    stepper.content(c);
-    stepper.bottomRowFinite(c);
-  }
+  return { stepper, c, nu, uniform };
 }
 
 /**

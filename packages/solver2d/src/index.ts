@@ -13,7 +13,8 @@ export { MOBILITY_FITS, mobilityCm2PerVs, conductivitySPerCm, resistivityOhmCm, 
 export { coarseReports, coarsenedRecipe, withErrorBars, solveWithErrorBars } from './error-estimate.ts';
 export { richardsonError, type ErrorEstimateSummary } from './error-bars.ts';
 export { searchStripe, searchStripeWithError, pairRecipe, StripeSearchError, type StripeSearch, type StripeSearchWithError, type StripeSolve } from './stripe-search.ts';
-export { reportSchema, reportJsonSchema } from './report-schema.ts';
+// The report's schema (zod) is its own entry, '@edgewise/solver2d/report-schema', so that what
+// imports the solver does not load a schema library with it.
 export { PunchThroughError, searchPunchThrough, searchPunchThroughWithError, spacingBiasOf, type PunchThroughSearch, type PunchThroughSearchWithError, type PunchThroughSolve } from './punch-through.ts';
 export { maskedStretches, windowOrder } from './mask.ts';
 export { SPACING_SCHEMA_ID, SWEEP_SCHEMA_ID } from './schema-ids.ts';

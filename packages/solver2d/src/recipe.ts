@@ -1,4 +1,5 @@
-import { z } from 'zod';
+import * as z from 'zod/mini';
+import type { $ZodIssue, $ZodShape } from 'zod/v4/core';
 import { BUILTIN_DOPANTS } from './dopants.ts';
 import { AMBIENTS } from './oxidation.ts';
 import { DIFFUSION_MODELS, RecipeError } from './recipe-terms.ts';
@@ -44,17 +45,16 @@ function explain(allowed: string) {
 function num(unit: string, lo: number, hi: number, loExclusive = false) {
   const allowed = `a number ${loExclusive ? 'above' : 'from'} ${formatNumber(lo)} ${loExclusive ? 'and up to' : 'to'} ${formatNumber(hi)}${unit ? ` ${unit}` : ''}`;
   const error = explain(allowed);
-  const base = z.number({ error });
-  return (loExclusive ? base.gt(lo, { error }) : base.gte(lo, { error })).lte(hi, { error });
+  return z.number({ error }).check(loExclusive ? z.gt(lo, { error }) : z.gte(lo, { error }), z.lte(hi, { error }));
 }
 
 function int(lo: number, hi: number) {
   const error = explain(`a whole number from ${lo} to ${hi}`);
-  return z.number({ error }).int({ error }).gte(lo, { error }).lte(hi, { error });
+  return z.int({ error }).check(z.gte(lo, { error }), z.lte(hi, { error }));
 }
 
 /** An object that rejects unknown keys, naming the ones it accepts. */
-function strict<T extends z.ZodRawShape>(shape: T) {
+function strict<T extends $ZodShape>(shape: T) {
   const keys = Object.keys(shape).join(', ');
   return z.strictObject(shape, {
     error: (iss) => {
@@ -73,8 +73,10 @@ const INHERITED_NAMES = new Set(Object.getOwnPropertyNames(Object.prototype));
 
 const dopantName = z
   .string({ error: explain('a dopant name (B, P, As, Sb or one defined under "dopants")') })
-  .regex(/^[A-Za-z][A-Za-z0-9_-]{0,31}$/, { error: explain('a dopant name of letters, digits, "_" or "-", starting with a letter, at most 32 long') })
-  .refine((name) => !INHERITED_NAMES.has(name), { error: (iss) => `must not be ${JSON.stringify(iss.input)}: JavaScript reserves that name; choose another` });
+  .check(
+    z.regex(/^[A-Za-z][A-Za-z0-9_-]{0,31}$/, { error: explain('a dopant name of letters, digits, "_" or "-", starting with a letter, at most 32 long') }),
+    z.refine((name: string) => !INHERITED_NAMES.has(name), { error: (iss) => `must not be ${JSON.stringify(iss.input)}: JavaScript reserves that name; choose another` }),
+  );
 
 /** A record's error: what is wrong with a key, where a key is at fault; `otherwise` for the rest. */
 function keyOr(otherwise: (iss: Issue) => string) {
@@ -83,9 +85,9 @@ function keyOr(otherwise: (iss: Issue) => string) {
 }
 
 /** A species of the recipe's own may not take a built-in name: it would silently replace the built-in one. */
-const userDopantName = dopantName.refine((name) => !Object.hasOwn(BUILTIN_DOPANTS, name), {
+const userDopantName = dopantName.check(z.refine((name: string) => !Object.hasOwn(BUILTIN_DOPANTS, name), {
   error: (iss) => `${JSON.stringify(iss.input)} is a built-in dopant (${Object.keys(BUILTIN_DOPANTS).join(', ')}); a species of the recipe's own needs another name`,
-});
+}));
 
 const concentration = num('cm^-3', 1e10, 1e22);
 const temperatureC = num('°C (the diffusivity tables cover this range)', TEMPERATURE_RANGE_C[0], TEMPERATURE_RANGE_C[1]);
@@ -121,8 +123,8 @@ const film = strict({
   kind: z.literal('film'),
   dopant: dopantName,
   doseCm2: dose,
-  temperatureC: temperatureOrRamp.optional(),
-  minutes: minutes.optional(),
+  temperatureC: z.optional(temperatureOrRamp),
+  minutes: z.optional(minutes),
 });
 
 const implant = strict({
@@ -131,13 +133,13 @@ const implant = strict({
   doseCm2: dose,
   projectedRangeUm: num('µm', 0, 20),
   straggleUm: num('µm', 0, 10, true),
-  lateralStraggleUm: num('µm', 0, 10, true).optional(),
+  lateralStraggleUm: z.optional(num('µm', 0, 10, true)),
 });
 
 /** The gas over the wafer during a heat: an oxidising one grows oxide in the windows (see oxidation.ts). */
 const ambient = z.enum(AMBIENTS, { error: explain(`one of ${AMBIENTS.map((a) => `"${a}"`).join(', ')}`) });
 
-const heat = (kind: 'drive-in' | 'anneal') => strict({ kind: z.literal(kind), temperatureC: temperatureOrRamp, minutes, ambient: ambient.optional() });
+const heat = (kind: 'drive-in' | 'anneal') => strict({ kind: z.literal(kind), temperatureC: temperatureOrRamp, minutes, ambient: z.optional(ambient) });
 
 export const STEP_KINDS = ['predeposition', 'film', 'implant', 'drive-in', 'anneal'] as const;
 
@@ -165,10 +167,10 @@ const userDopant = strict({
   type: z.enum(['donor', 'acceptor'], { error: explain('"donor" or "acceptor"') }),
   D0Cm2PerS: num('cm^2/s', 0, 1e6, true),
   EaEv: num('eV', 0, 10, true),
-  singlyCharged: arrhenius.optional(),
-  doublyCharged: arrhenius.optional(),
-  solubilityCm3: z.array(z.tuple([temperatureC, concentration]), { error: explain('a list of [temperature °C, concentration cm^-3] pairs') })
-    .min(2, { error: 'must list at least two [temperature °C, concentration cm^-3] pairs' }).optional(),
+  singlyCharged: z.optional(arrhenius),
+  doublyCharged: z.optional(arrhenius),
+  solubilityCm3: z.optional(z.array(z.tuple([temperatureC, concentration]), { error: explain('a list of [temperature °C, concentration cm^-3] pairs') })
+    .check(z.minLength(2, { error: 'must list at least two [temperature °C, concentration cm^-3] pairs' }))),
 });
 
 const model = z.enum(DIFFUSION_MODELS, { error: explain(`one of ${DIFFUSION_MODELS.join(', ')}`) });
@@ -179,9 +181,9 @@ const model = z.enum(DIFFUSION_MODELS, { error: explain(`one of ${DIFFUSION_MODE
  * built-in-field enhancement for the dominant species). Per species overrides the default.
  */
 const diffusion = strict({
-  model: model.optional(),
-  species: z.record(dopantName, model, { error: explain('an object of dopant name → model') }).optional(),
-  fieldEnhancement: z.boolean({ error: explain('true or false') }).optional(),
+  model: z.optional(model),
+  species: z.optional(z.record(dopantName, model, { error: explain('an object of dopant name → model') })),
+  fieldEnhancement: z.optional(z.boolean({ error: explain('true or false') })),
 });
 
 const onOff = z.boolean({ error: explain('true or false') });
@@ -195,24 +197,24 @@ const onOff = z.boolean({ error: explain('true or false') });
  * apply to, a switch is refused.
  */
 const physics = strict({
-  phosphorusKink: onOff.optional(),
-  clustering: onOff.optional(),
-  ted: onOff.optional(),
-  oxidationEnhanced: onOff.optional(),
+  phosphorusKink: z.optional(onOff),
+  clustering: z.optional(onOff),
+  ted: z.optional(onOff),
+  oxidationEnhanced: z.optional(onOff),
 });
 
 const meshOptions = strict({
-  refine: num('(1 = default mesh)', 0.25, 8).optional(),
-  surfaceSpacingUm: num('µm', 1e-4, 100).optional(),
-  edgeSpacingUm: num('µm', 1e-4, 100).optional(),
-  maxSpacingUm: num('µm', 1e-4, 1000).optional(),
-  columns: int(8, 4000).optional(),
-  rows: int(8, 4000).optional(),
+  refine: z.optional(num('(1 = default mesh)', 0.25, 8)),
+  surfaceSpacingUm: z.optional(num('µm', 1e-4, 100)),
+  edgeSpacingUm: z.optional(num('µm', 1e-4, 100)),
+  maxSpacingUm: z.optional(num('µm', 1e-4, 1000)),
+  columns: z.optional(int(8, 4000)),
+  rows: z.optional(int(8, 4000)),
 });
 
 const numerics = strict({
-  stepGrowth: num('(ratio of successive time steps)', 1.001, 3).optional(),
-  startupSteps: int(0, 20).optional(),
+  stepGrowth: z.optional(num('(ratio of successive time steps)', 1.001, 3)),
+  startupSteps: z.optional(int(0, 20)),
 });
 
 /**
@@ -221,8 +223,8 @@ const numerics = strict({
  */
 const sweepValues = z.union([z.string(), z.array(z.number())], { error: explain('a range "start:step:stop" or a list of numbers') });
 const sweep = strict({
-  widthsUm: sweepValues.optional(),
-  set: z.record(z.string(), sweepValues, { error: explain('an object of recipe path → values') }).optional(),
+  widthsUm: z.optional(sweepValues),
+  set: z.optional(z.record(z.string(), sweepValues, { error: explain('an object of recipe path → values') })),
 });
 
 /** Reverse biases of the electrical rules: at most this many, each up to this many volts. */
@@ -237,41 +239,37 @@ const reverseBias = num('V (a reverse bias)', 0, MAX_BIAS_V);
  */
 const electrical = strict({
   biasV: z.array(reverseBias, { error: explain(`a list of reverse biases, each from 0 to ${MAX_BIAS_V} V`) })
-    .min(1, { error: 'must list at least one reverse bias in V' })
-    .max(MAX_BIAS_POINTS, { error: `must list at most ${MAX_BIAS_POINTS} reverse biases` }),
-  spacingBiasV: reverseBias.optional(),
+    .check(z.minLength(1, { error: 'must list at least one reverse bias in V' }), z.maxLength(MAX_BIAS_POINTS, { error: `must list at most ${MAX_BIAS_POINTS} reverse biases` })),
+  spacingBiasV: z.optional(reverseBias),
 });
 
 export const recipeSchema = strict({
-  schema: z.literal(RECIPE_SCHEMA_ID, { error: explain(`"${RECIPE_SCHEMA_ID}"`) }).optional(),
-  title: z.string({ error: explain('text') }).max(500, { error: explain('text of at most 500 characters') }).optional(),
+  schema: z.optional(z.literal(RECIPE_SCHEMA_ID, { error: explain(`"${RECIPE_SCHEMA_ID}"`) })),
+  title: z.optional(z.string({ error: explain('text') }).check(z.maxLength(500, { error: explain('text of at most 500 characters') }))),
   substrate: strict({ dopant: dopantName, concentrationCm3: num('cm^-3', 1e10, 1e21) }),
-  crossSection: strict({ widthUm: num('µm', 0, 1e4, true), lengthUm: num('µm', 0, 1e4, true).optional(), depthUm: num('µm', 0, 1e3, true).optional() }),
+  crossSection: strict({ widthUm: num('µm', 0, 1e4, true), lengthUm: z.optional(num('µm', 0, 1e4, true)), depthUm: z.optional(num('µm', 0, 1e3, true)) }),
   mask: strict({
-    windows: z.array(windowPair, { error: explain('a list of windows [x0, x1] in µm') })
-      .min(1, { error: 'must list at least one window [x0, x1] in µm' })
-      .max(256, { error: 'must list at most 256 windows' }).optional(),
-    rectangles: z.array(rectangle, { error: explain('a list of rectangles [x0, y0, x1, y1] in µm') })
-      .min(1, { error: 'must list at least one rectangle [x0, y0, x1, y1] in µm' })
-      .max(64, { error: 'must list at most 64 rectangles' }).optional(),
-  }).superRefine((mask, ctx) => {
+    windows: z.optional(z.array(windowPair, { error: explain('a list of windows [x0, x1] in µm') })
+      .check(z.minLength(1, { error: 'must list at least one window [x0, x1] in µm' }), z.maxLength(256, { error: 'must list at most 256 windows' }))),
+    rectangles: z.optional(z.array(rectangle, { error: explain('a list of rectangles [x0, y0, x1, y1] in µm') })
+      .check(z.minLength(1, { error: 'must list at least one rectangle [x0, y0, x1, y1] in µm' }), z.maxLength(64, { error: 'must list at most 64 rectangles' }))),
+  }).check(z.superRefine((mask, ctx) => {
     // A 2D cross-section (windows) or a 3D plan view (rectangles): one or the other.
     if (mask.windows !== undefined && mask.rectangles !== undefined) {
       ctx.addIssue({ code: 'custom', path: ['rectangles'], message: 'cannot be given with mask.windows: windows [x0, x1] make a 2D cross-section, rectangles [x0, y0, x1, y1] a 3D plan view; give one of them' });
     } else if (mask.windows === undefined && mask.rectangles === undefined) {
       ctx.addIssue({ code: 'custom', path: ['windows'], message: 'is required: a list of windows [x0, x1] in µm (2D cross-section), or give mask.rectangles [x0, y0, x1, y1] in µm (3D)' });
     }
-  }),
-  diffusion: diffusion.optional(),
-  physics: physics.optional(),
-  dopants: z.record(userDopantName, userDopant, { error: keyOr(explain('an object of dopant name → { type, D0Cm2PerS, EaEv }')) }).optional(),
-  mesh: meshOptions.optional(),
-  numerics: numerics.optional(),
-  sweep: sweep.optional(),
-  electrical: electrical.optional(),
+  })),
+  diffusion: z.optional(diffusion),
+  physics: z.optional(physics),
+  dopants: z.optional(z.record(userDopantName, userDopant, { error: keyOr(explain('an object of dopant name → { type, D0Cm2PerS, EaEv }')) })),
+  mesh: z.optional(meshOptions),
+  numerics: z.optional(numerics),
+  sweep: z.optional(sweep),
+  electrical: z.optional(electrical),
   steps: z.array(step, { error: explain('a list of steps') })
-    .min(1, { error: 'must list at least one step' })
-    .max(200, { error: 'must list at most 200 steps' }),
+    .check(z.minLength(1, { error: 'must list at least one step' }), z.maxLength(200, { error: 'must list at most 200 steps' })),
 });
 
 export type Recipe = z.infer<typeof recipeSchema>;
@@ -361,7 +359,7 @@ const samePath = (a: readonly PropertyKey[], b: readonly PropertyKey[]) => a.len
  * does not know is most likely a misspelling: both are named in one line
  * (`substrate: "concentration" is not a key here; did you mean "concentrationCm3"?`).
  */
-function firstProblem(issues: readonly z.core.$ZodIssue[]): RecipeError {
+function firstProblem(issues: readonly $ZodIssue[]): RecipeError {
   const issue = issues[0];
   const missing = issue.code === 'invalid_type' && issue.input === undefined && issue.path.length > 0 ? issue.path : null;
   if (missing) {

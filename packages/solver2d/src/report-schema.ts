@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 import { REPORT_SCHEMA_ID, type Report } from './analyze.ts';
 import { SPACING_ERROR_KEYS, WINDOW_ERROR_KEYS } from './error-bars.ts';
 

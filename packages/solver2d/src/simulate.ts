@@ -28,7 +28,9 @@ export function simulate(plan: Plan, options: SimulateOptions = {}): Simulation 
   const nonlinear = species.filter((s) => s.model === 'charged-defect' || s.activation !== null);
   const run: Run = {
     plan, options, peaks, concentration, entered, done: 0, total, present: [], presentIndex: [],
-    stepper: keepLayout(new AdiStepper(mesh, mask)),
+    // Only the kernels this plan will call are primed (priming.ts): variable D needs a
+    // concentration-dependent model or a point-defect model that sets D per node.
+    stepper: keepLayout(new AdiStepper(mesh, mask, { variableD: nonlinear.length > 0 || enhanced(plan) })),
     coupled: nonlinear.length > 0 ? keepLayout(new CoupledDiffusivity(plan, cells)) : null,
     enhancement: enhanced(plan) ? new DefectEnhancement(plan, species.length) : null,
   };

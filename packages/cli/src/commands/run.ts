@@ -11,7 +11,6 @@ import { HELP_OPTION, type CommandSpec } from '../help.ts';
 import { writeRunFolder } from '../output.ts';
 import { progressReporter } from '../progress.ts';
 import { readRecipeFile } from '../read-recipe.ts';
-import { sweepParameters } from '../sweep/matrix.ts';
 
 export const RUN_USAGE = `edgewise run RECIPE [--out DIR] [--error-solves 0|1|2] ${LIMITS_USAGE} [--quiet]`;
 
@@ -59,12 +58,13 @@ export function defaultOutFolder(recipePath: string): string {
 /**
  * A recipe's own `sweep` key, checked as `sweep` would check it (ranges, lists, paths), so
  * that a recipe one command accepts the other does not refuse. A single run ignores its values.
+ * The sweep's code (which walks the recipe's JSON Schema) is loaded only for such a recipe.
  */
-export function checkSweepSection(recipe: Recipe): void {
-  if (recipe.sweep !== undefined) sweepParameters(recipe, { set: [] });
+export async function checkSweepSection(recipe: Recipe): Promise<void> {
+  if (recipe.sweep !== undefined) (await import('../sweep/matrix.ts')).sweepParameters(recipe, { set: [] });
 }
 
-export function runCommand(args: string[]): number {
+export async function runCommand(args: string[]): Promise<number> {
   const { values, positionals } = parseArgs({ args, allowPositionals: true, strict: true, options: RUN_SPEC.options });
   const errorSolves = parseErrorSolves(values['error-solves']);
   const limits = parseLimits(values);
@@ -73,8 +73,8 @@ export function runCommand(args: string[]): number {
   const out = outFolder(values.out, defaultOutFolder(recipePath));
   if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${out}: is a file, not a folder`);
   const started = performance.now();
-  const recipe = parseRecipe(readRecipeFile(recipePath));
-  checkSweepSection(recipe);
+  const recipe = parseRecipe(await readRecipeFile(recipePath));
+  await checkSweepSection(recipe);
   const plan = withLimitHint(limits, () => planRecipe(recipe, limits));
   const made = checkWritable(out);
   const progress = progressReporter(values.quiet ? null : process.stderr, 'solving');

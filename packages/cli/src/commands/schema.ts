@@ -1,5 +1,6 @@
-import { z } from 'zod';
-import { recipeSchema, reportJsonSchema, RECIPE_SCHEMA_ID } from '@edgewise/solver2d';
+import { toJSONSchema } from 'zod/mini';
+import { recipeSchema, RECIPE_SCHEMA_ID } from '@edgewise/solver2d';
+import { reportJsonSchema } from '@edgewise/solver2d/report-schema';
 import { UsageError } from '../errors.ts';
 import { HELP_OPTION, type CommandSpec } from '../help.ts';
 
@@ -14,7 +15,7 @@ export const SCHEMA_SPEC = {
 
 /** The JSON Schemas this command prints, by name. */
 const SCHEMAS: Record<string, () => Record<string, unknown>> = {
-  recipe: () => ({ $id: RECIPE_SCHEMA_ID, title: 'Edgewise recipe', ...z.toJSONSchema(recipeSchema) }),
+  recipe: () => ({ $id: RECIPE_SCHEMA_ID, title: 'Edgewise recipe', ...toJSONSchema(recipeSchema) }),
   report: reportJsonSchema,
 };
 

@@ -58,7 +58,7 @@ function parse(args: string[]) {
   }
 }
 
-export function spacingCommand(args: string[]): number {
+export async function spacingCommand(args: string[]): Promise<number> {
   const { values, positionals } = parse(args);
   if (positionals.length !== 1) throw new UsageError(`spacing takes one recipe file (usage: ${SPACING_USAGE})`);
   const gapUm = number('--gap', values.gap, GAP_RANGE_UM);
@@ -66,8 +66,8 @@ export function spacingCommand(args: string[]): number {
   const errorSolves = parseErrorSolves(values['error-solves']);
   const recipePath = positionals[0];
   const out = outFolder(values.out, join('out', `${basename(recipePath, extname(recipePath))}-spacing`));
-  const recipe = parseRecipe(readRecipeFile(recipePath));
-  checkSweepSection(recipe);
+  const recipe = parseRecipe(await readRecipeFile(recipePath));
+  await checkSweepSection(recipe);
   planRecipe(recipe); // bad recipes fail here, before any search
   checkWritable(out);
   const log = values.quiet ? null : process.stderr;

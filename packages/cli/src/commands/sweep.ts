@@ -94,7 +94,7 @@ export async function sweepCommand(args: string[]): Promise<number> {
   const pool = new WorkerPool(jobs, workerBundle());
   try {
     // Every run is built and validated here; nothing is written before this line succeeds.
-    const matrix = buildMatrix(readRecipeFile(recipePath), { widths: values.widths, set: values.set, limits });
+    const matrix = buildMatrix(await readRecipeFile(recipePath), { widths: values.widths, set: values.set, limits });
     return await runSweep(matrix, pool, { out, jobs, errorSolves, shard, resume: values.resume, quiet: values.quiet, limits });
   } finally {
     await pool.close();
@@ -105,7 +105,7 @@ export async function sweepCommand(args: string[]): Promise<number> {
  * `--plan`: every run is built and checked as for a sweep, then the split and the scheduler
  * files are printed; nothing is written and no run starts.
  */
-function planCommand(recipePath: string, values: Record<string, string | string[] | boolean | undefined>, shards: number | null): number {
+async function planCommand(recipePath: string, values: Record<string, string | string[] | boolean | undefined>, shards: number | null): Promise<number> {
   const scheduler = values.scheduler as string | undefined;
   if (scheduler !== undefined && scheduler !== 'slurm' && scheduler !== 'kubernetes') {
     throw new UsageError(`--scheduler ${JSON.stringify(scheduler)}: expected slurm or kubernetes`);
@@ -116,7 +116,7 @@ function planCommand(recipePath: string, values: Record<string, string | string[
   if (values['error-solves'] !== undefined) parseErrorSolves(values['error-solves'] as string, 'per run');
   const widths = values.widths as string | undefined;
   const set = values.set as string[];
-  const matrix = buildMatrix(readRecipeFile(recipePath), { widths, set, limits });
+  const matrix = buildMatrix(await readRecipeFile(recipePath), { widths, set, limits });
   const sweepArgs = [resolve(recipePath)];
   if (widths !== undefined) sweepArgs.push('--widths', widths);
   for (const s of set) sweepArgs.push('--set', s);

@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import { toJSONSchema } from 'zod/mini';
 import { recipeSchema } from '@edgewise/solver2d';
 import { UsageError } from '../errors.ts';
 
@@ -23,7 +23,7 @@ interface SchemaNode {
 
 let rootSchema: SchemaNode | null = null;
 function schemaRoot(): SchemaNode {
-  rootSchema ??= z.toJSONSchema(recipeSchema) as SchemaNode;
+  rootSchema ??= toJSONSchema(recipeSchema) as SchemaNode;
   return rootSchema;
 }
 

@@ -1,6 +1,7 @@
 import { closeSync, existsSync, fstatSync, openSync, readFileSync, readSync, rmSync } from 'node:fs';
 import { basename, join } from 'node:path';
-import { reportSchema, type Report } from '@edgewise/solver2d';
+import type { Report } from '@edgewise/solver2d';
+import { reportSchema } from '@edgewise/solver2d/report-schema';
 import { ELECTRICAL_FILES } from '../output.ts';
 import { reportResults, type WindowResult } from './csv.ts';
 import { recipeSha256 } from './hash.ts';
