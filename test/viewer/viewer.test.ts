@@ -348,16 +348,46 @@ describe('edgewise view on a sweep folder', () => {
     expect((await snapshot(page)).mode).toBe('grid');
   });
 
-  it('plots junction depth and lateral encroachment against window width', async () => {
+  it('plots junction depth and the lateral reach (wider edge, any depth) against window width, with the runs\' error bars', async () => {
     const dots = await page.$$eval('#plot circle', (els) => els.map((e) => ({
       series: e.parentElement!.getAttribute('class'), id: (e as SVGElement).dataset.runId, um: Number((e as SVGElement).dataset.valueUm),
+      cy: Number(e.getAttribute('cy')),
     })));
-    expect(dots.filter((d) => /junctionDepthUm/.test(d.series!))).toHaveLength(WIDTHS.length);
-    for (const d of dots.filter((dd) => /junctionDepthUm/.test(dd.series!))) {
+    const bars = await page.$$eval('#plot path.error-bar', (els) => els.map((e) => ({
+      series: e.parentElement!.getAttribute('class'), id: (e as SVGElement).dataset.runId, um: Number((e as SVGElement).dataset.errorUm),
+      d: e.getAttribute('d')!,
+    })));
+    const xj = dots.filter((d) => /junctionDepthUm/.test(d.series!));
+    const reach = dots.filter((d) => /lateralUm/.test(d.series!));
+    expect(xj).toHaveLength(WIDTHS.length);
+    expect(reach).toHaveLength(WIDTHS.length);
+    for (const d of xj) {
       const run = runs.find((r) => r.id === d.id)!;
       expect(d.um).toBe(readReport(join(sweepDir, run.dir)).windows[0].junctionDepthUm); // source: report.json
     }
-    expect(dots.filter((d) => /lateralUm/.test(d.series!))).toHaveLength(WIDTHS.length);
+    for (const d of reach) {
+      const w = readReport(join(sweepDir, runs.find((r) => r.id === d.id)!.dir)).windows[0];
+      // source: report.json, the wider edge's reach at any depth (not the surface lateral)
+      expect(d.um).toBe(Math.max(w.lateralReachLeftUm, w.lateralReachRightUm));
+      const edge = w.lateralReachLeftUm >= w.lateralReachRightUm ? 'lateralReachLeftUm' : 'lateralReachRightUm';
+      const bar = bars.find((b) => b.id === d.id && /lateralUm/.test(b.series!));
+      if (w.errors?.[edge] > 0) {
+        expect(bar?.um).toBe(w.errors[edge]);
+      } else expect(bar).toBeUndefined();
+    }
+    // Every bar spans value ± error on the plot's own scale (µm per pixel from two xj dots).
+    const [a, b] = [xj[0], xj[xj.length - 1]];
+    const pxPerUm = (a.cy - b.cy) / (b.um - a.um);
+    expect(bars.length).toBeGreaterThan(0);
+    for (const bar of bars) {
+      const dot = dots.find((d) => d.id === bar.id && d.series === bar.series)!;
+      const [, yLow, yHigh] = /^M[\d.]+,([\d.]+)V([\d.]+)/.exec(bar.d)!.map(Number);
+      expect(Math.abs(yLow - yHigh) / 2).toBeCloseTo(bar.um * pxPerUm, 1);
+      expect((yLow + yHigh) / 2).toBeCloseTo(dot.cy, 1);
+    }
+    const axis = await page.textContent('#plot .y-label');
+    expect(axis).toContain('lateral reach');
+    expect(await page.textContent('#plot .legend-lateralUm')).toMatch(/lateral reach, any depth/);
   });
 
   it('re-runs an edited recipe in a worker with progress, without freezing the page, with error bars, and the shown xj changes', async () => {
