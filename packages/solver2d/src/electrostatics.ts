@@ -1,3 +1,4 @@
+import { FivePointMultigrid } from './multigrid.ts';
 import { BOLTZMANN_EV_PER_K } from './units.ts';
 
 /**
@@ -108,10 +109,10 @@ const CG_TANGENT_TOLERANCE = 1e-10;
 /**
  * Newton's method on the finite-volume residual with a backtracking line search on its norm.
  * The Jacobian −Δ + diag(κ·V·(n + p)/Vt) is symmetric positive definite (Dirichlet rows
- * eliminated), so each linear solve is conjugate gradients preconditioned by the incomplete
- * Cholesky factor of the five-point matrix without fill, IC(0) (Meijerink & van der Vorst,
- * Math. Comp. 31 (1977) 148; from memory); on a single column that factor is exact and one
- * iteration solves. Every buffer is allocated here, once.
+ * eliminated), so each linear solve is conjugate gradients preconditioned by a multigrid
+ * V-cycle (`multigrid.ts`: z-line relaxation, coarsening in x), whose iteration count stays
+ * flat as the grid is refined; on a single column the line solve is exact and one iteration
+ * solves. Every buffer is allocated here, once.
  */
 export class PoissonSolver {
   readonly problem: JunctionProblem;
@@ -126,14 +127,11 @@ export class PoissonSolver {
   private readonly tx: Float64Array;
   private readonly tz: Float64Array;
   private readonly diag: Float64Array;
-  private readonly factor: Float64Array;
   private readonly residual: Float64Array;
   private readonly trial: Float64Array;
   private readonly step: Float64Array;
-  private readonly r: Float64Array;
-  private readonly zv: Float64Array;
-  private readonly pv: Float64Array;
   private readonly qv: Float64Array;
+  private readonly multigrid: FivePointMultigrid;
   private readonly contactShift: Float64Array;
   private readonly neutral: Float64Array;
   private readonly saved: Float64Array;
@@ -146,8 +144,8 @@ export class PoissonSolver {
     this.n = n;
     const buf = () => new Float64Array(n);
     this.psi = buf(); this.slope = buf(); this.volume = buf(); this.tx = buf(); this.tz = buf();
-    this.diag = buf(); this.factor = buf(); this.residual = buf(); this.trial = buf(); this.step = buf();
-    this.r = buf(); this.zv = buf(); this.pv = buf(); this.qv = buf(); this.contactShift = buf(); this.neutral = buf(); this.saved = buf();
+    this.diag = buf(); this.residual = buf(); this.trial = buf(); this.step = buf();
+    this.qv = buf(); this.contactShift = buf(); this.neutral = buf(); this.saved = buf();
     for (let j = 0; j < nz; j++) {
       for (let i = 0; i < nx; i++) {
         const k = j * nx + i;
@@ -162,6 +160,7 @@ export class PoissonSolver {
       }
     }
     this.psi.set(this.neutral);
+    this.multigrid = new FivePointMultigrid(mesh.x, nz, problem.contact);
   }
 
   /** Carrier densities at node k for potential ψ and bias V. */
@@ -332,50 +331,8 @@ export class PoissonSolver {
 
   /** Preconditioned conjugate gradients on J·x = b (contacts excluded); returns the iterations. */
   private solveLinear(b: Float64Array, x: Float64Array, tolerance: number): number {
-    const { nx } = this.problem.mesh;
-    const { contact } = this.problem;
-    const { r, zv, pv, qv, diag, factor, tx, tz } = this;
-    const n = this.n;
-    incompleteCholesky(diag, tx, tz, contact, nx, factor);
-    x.fill(0);
-    if (freeRows(b, r, contact) === 0) return 0;
-    applyPreconditioner(r, zv, factor, tx, tz, contact, nx);
-    pv.set(zv);
-    let rz = dot(r, zv);
-    const target = rz * tolerance * tolerance;
-    let it = 0;
-    for (it = 1; it <= 4 * n + 50; it++) {
-      multiply(pv, qv, diag, tx, tz, contact, nx);
-      const alpha = rz / dot(pv, qv);
-      updateSolution(x, r, pv, qv, alpha);
-      applyPreconditioner(r, zv, factor, tx, tz, contact, nx);
-      const rzNext = dot(r, zv);
-      if (rzNext <= target) break;
-      updateDirection(pv, zv, rzNext / rz);
-      rz = rzNext;
-    }
-    return it;
-  }
-}
-
-// Each loop of the conjugate-gradient iteration is a function of its own: a loop compiled
-// mid-call before the code after it had run deoptimised on every later call (seen as ten
-// times slower iterations under --trace-deopt).
-
-/** x += α·p; r −= α·q (r flushed to 0 below 1e-200: subnormal numbers are slow). */
-function updateSolution(x: Float64Array, r: Float64Array, p: Float64Array, q: Float64Array, alpha: number): void {
-  for (let k = 0; k < x.length; k++) {
-    x[k] += alpha * p[k];
-    const v = r[k] - alpha * q[k];
-    r[k] = v > 1e-200 || v < -1e-200 ? v : 0;
-  }
-}
-
-/** p = z + β·p */
-function updateDirection(p: Float64Array, z: Float64Array, beta: number): void {
-  for (let k = 0; k < p.length; k++) {
-    const v = z[k] + beta * p[k];
-    p[k] = v > 1e-200 || v < -1e-200 ? v : 0;
+    this.multigrid.setup(this.diag, this.tx, this.tz);
+    return this.multigrid.solve(b, x, tolerance);
   }
 }
 
@@ -414,86 +371,8 @@ function residualKernel(psi: Float64Array, out: Float64Array, diag: Float64Array
   return Math.sqrt(sum);
 }
 
-/** The right-hand side with the contacts' rows zeroed; returns its squared norm. */
-function freeRows(b: Float64Array, r: Float64Array, contact: Uint8Array): number {
-  let sum = 0;
-  for (let k = 0; k < r.length; k++) {
-    const v = contact[k] === 1 ? 0 : b[k];
-    r[k] = v;
-    sum += v * v;
-  }
-  return sum;
-}
-
 function clampExp(a: number): number {
   return a > EXP_LIMIT ? EXP_LIMIT : a < -EXP_LIMIT ? -EXP_LIMIT : a;
-}
-
-function dot(a: Float64Array, b: Float64Array): number {
-  let s = 0;
-  for (let k = 0; k < a.length; k++) s += a[k] * b[k];
-  return s;
-}
-
-/** q = J·p with J's off-diagonal −tx, −tz; couplings to contacts dropped (their update is 0). */
-function multiply(p: Float64Array, q: Float64Array, diag: Float64Array, tx: Float64Array, tz: Float64Array, contact: Uint8Array, nx: number): void {
-  const n = p.length;
-  for (let k = 0; k < n; k++) {
-    if (contact[k] === 1) { q[k] = 0; continue; }
-    const i = k % nx;
-    let s = diag[k] * p[k];
-    if (i > 0 && contact[k - 1] === 0) s -= tx[k - 1] * p[k - 1];
-    if (i + 1 < nx && contact[k + 1] === 0) s -= tx[k] * p[k + 1];
-    if (k >= nx && contact[k - nx] === 0) s -= tz[k - nx] * p[k - nx];
-    if (k + nx < n && contact[k + nx] === 0) s -= tz[k] * p[k + nx];
-    q[k] = s;
-  }
-}
-
-/** IC(0) of the five-point matrix as M = (D + L)·D⁻¹·(D + Lᵀ): the pivots D into `d`. */
-function incompleteCholesky(diag: Float64Array, tx: Float64Array, tz: Float64Array, contact: Uint8Array, nx: number, d: Float64Array): void {
-  const n = diag.length;
-  for (let k = 0; k < n; k++) {
-    if (contact[k] === 1) { d[k] = 1; continue; }
-    const i = k % nx;
-    let s = diag[k];
-    if (i > 0 && contact[k - 1] === 0) s -= (tx[k - 1] * tx[k - 1]) / d[k - 1];
-    if (k >= nx && contact[k - nx] === 0) s -= (tz[k - nx] * tz[k - nx]) / d[k - nx];
-    d[k] = s;
-  }
-}
-
-/** z = M⁻¹·r: forward (D + L)w = r, then (D + Lᵀ)z = D·w. */
-function applyPreconditioner(r: Float64Array, z: Float64Array, d: Float64Array, tx: Float64Array, tz: Float64Array, contact: Uint8Array, nx: number): void {
-  forwardSweep(r, z, d, tx, tz, contact, nx);
-  backwardSweep(z, d, tx, tz, contact, nx);
-}
-
-function forwardSweep(r: Float64Array, z: Float64Array, d: Float64Array, tx: Float64Array, tz: Float64Array, contact: Uint8Array, nx: number): void {
-  const n = r.length;
-  for (let k = 0; k < n; k++) {
-    if (contact[k] === 1) { z[k] = 0; continue; }
-    const i = k % nx;
-    let s = r[k];
-    if (i > 0 && contact[k - 1] === 0) s += tx[k - 1] * z[k - 1];
-    if (k >= nx && contact[k - nx] === 0) s += tz[k - nx] * z[k - nx];
-    // Flushed below 1e-200: the sweep decays geometrically through a heavily doped region.
-    const v = s / d[k];
-    z[k] = v > 1e-200 || v < -1e-200 ? v : 0;
-  }
-}
-
-function backwardSweep(z: Float64Array, d: Float64Array, tx: Float64Array, tz: Float64Array, contact: Uint8Array, nx: number): void {
-  const n = z.length;
-  for (let k = n - 1; k >= 0; k--) {
-    if (contact[k] === 1) continue;
-    const i = k % nx;
-    let s = 0;
-    if (i + 1 < nx && contact[k + 1] === 0) s += tx[k] * z[k + 1];
-    if (k + nx < n && contact[k + nx] === 0) s += tz[k] * z[k + nx];
-    const v = z[k] + s / d[k];
-    z[k] = v > 1e-200 || v < -1e-200 ? v : 0;
-  }
 }
 
 /** |E| and its components at each node, V/cm, by central differences (one-sided at the edges; zero across a mirror wall). */
