@@ -182,62 +182,91 @@ export interface BreakdownResult {
   breakdownV: number | null;
   /** where the field line with the largest integral starts, µm */
   atUm: [number, number] | null;
-  /** Poisson solves made */
+  /** Poisson solves made (biases visited) */
   solves: number;
+  /** Newton and conjugate-gradient iterations over the search (continuation included) */
+  iterations: number;
+  linearIterations: number;
   /** the bias at which Newton failed, if it did */
   failedAtV: number | null;
 }
 
 /**
+ * ln I against ln V is nearly a straight line of this slope below breakdown (measured on the
+ * boron base with Van Overstraeten & De Man's coefficients: 6.0–6.4 for the region, 5.6–6.6
+ * for its plane junction, from 20 V to breakdown): the first prediction, before two points
+ * give the slope.
+ */
+const LOG_SLOPE = 6;
+/** Stop when |ln I| is below this (0.002 % in V at the slope above)... */
+const LN_TOLERANCE = 1e-4;
+/** ...or when the bracket is this narrow, relative to V. */
+const BRACKET_TOLERANCE = 1e-3;
+
+/**
  * Raises the bias from the solver's current state until the largest ionisation integral is 1:
- * geometric steps up from `guessV`/2 until it passes 1, then the secant on ln I against V
- * (ln I is nearly linear in V near breakdown), to 0.1 % in V.
+ * from `guessV`/2, by the secant on ln I against ln V through the last two biases (nearly a
+ * straight line; the first step with the slope LOG_SLOPE), kept inside the bracket once there
+ * is one (falling back to interpolation between its ends), to 0.1 % in V. Measured on the
+ * default grid of the boron base: 3–4 biases against 6 for geometric steps of 1.5 and the
+ * secant on ln I against V.
  */
 export function searchBreakdown(solver: PoissonSolver, lines: FieldLines, model: IonisationModel, guessV: number): BreakdownResult {
   const net = solver.problem.net;
+  let iterations = 0;
+  let linearIterations = 0;
+  let solves = 0;
   const evaluate = (v: number): { ln: number; x: number; z: number } | null => {
-    const out = solver.continueTo(v, Math.max(1, Math.abs(v - solver.biasV)));
+    const out = solver.continueTo(v);
+    iterations += out.iterations;
+    linearIterations += out.linearIterations;
+    solves++;
     if (!out.converged) return null;
     lines.update(solver.psi);
     const best = lines.largestIntegral(model, net);
     return { ln: Math.log(Math.max(best.integral, 1e-300)), x: best.x, z: best.z };
   };
-  let solves = 0;
-  let lo = { v: solver.biasV, ln: -Infinity };
-  let v = Math.max(guessV * 0.5, solver.biasV);
+  const result = (breakdownV: number | null, atUm: [number, number] | null, failedAtV: number | null): BreakdownResult =>
+    ({ breakdownV, atUm, solves, iterations, linearIterations, failedAtV });
+  let lo: { v: number; ln: number } | null = null;
   let hi: { v: number; ln: number } | null = null;
+  let previous: { logV: number; ln: number } | null = null;
   let at: [number, number] | null = null;
+  let v = Math.max(guessV * 0.5, solver.biasV);
   for (let tries = 0; tries < 40; tries++) {
     const r = evaluate(v);
-    solves++;
-    if (r === null) return { breakdownV: null, atUm: null, solves, failedAtV: v };
-    if (r.ln >= 0) { hi = { v, ln: r.ln }; at = [r.x, r.z]; break; }
-    lo = { v, ln: r.ln };
-    v *= 1.5;
-  }
-  if (hi === null) return { breakdownV: null, atUm: null, solves, failedAtV: null };
-  // Keep the bracket [lo, hi] and step by the secant (regula falsi with the Illinois halving).
-  let side = 0;
-  for (let it = 0; it < 40 && hi.v - lo.v > 1e-3 * hi.v; it++) {
-    const vNext = Number.isFinite(lo.ln) ? lo.v + (0 - lo.ln) * (hi.v - lo.v) / (hi.ln - lo.ln) : 0.5 * (lo.v + hi.v);
-    const vClamped = Math.min(hi.v - 1e-4 * hi.v, Math.max(lo.v + 1e-4 * hi.v, vNext));
-    // Start the continuation from below when the next point is below the solver's bias.
-    const r = evaluate(vClamped);
-    solves++;
-    if (r === null) return { breakdownV: null, atUm: null, solves, failedAtV: vClamped };
-    if (Math.abs(r.ln) < 1e-4) return { breakdownV: vClamped, atUm: [r.x, r.z], solves, failedAtV: null };
-    if (r.ln >= 0) {
-      hi = { v: vClamped, ln: r.ln };
+    if (r === null) return result(null, null, v);
+    if (Math.abs(r.ln) < LN_TOLERANCE) return result(v, [r.x, r.z], null);
+    if (r.ln < 0) {
+      if (lo === null || v > lo.v) lo = { v, ln: r.ln };
+    } else if (hi === null || v < hi.v) {
+      hi = { v, ln: r.ln };
       at = [r.x, r.z];
-      if (side === 1) lo = { v: lo.v, ln: lo.ln / 2 };
-      side = 1;
-    } else {
-      lo = { v: vClamped, ln: r.ln };
-      if (side === -1) hi = { v: hi.v, ln: hi.ln / 2 };
-      side = -1;
     }
+    if (lo !== null && hi !== null && hi.v - lo.v <= BRACKET_TOLERANCE * hi.v) break;
+    const logV = Math.log(v);
+    let slope = previous === null ? LOG_SLOPE : (r.ln - previous.ln) / (logV - previous.logV);
+    if (!(slope > 0.5 && Number.isFinite(slope))) slope = LOG_SLOPE;
+    let next = v * Math.exp(-r.ln / slope);
+    if (lo !== null && hi !== null) {
+      const margin = 1e-4 * hi.v;
+      if (!(next > lo.v + margin && next < hi.v - margin)) next = logInterpolation(lo, hi);
+      next = Math.min(hi.v - margin, Math.max(lo.v + margin, next));
+    } else if (hi === null) {
+      next = Math.min(2 * v, Math.max(1.01 * v, next));
+    } else {
+      next = Math.max(0.5 * v, Math.min(0.99 * v, next));
+    }
+    previous = { logV, ln: r.ln };
+    v = next;
   }
-  const ln0 = lo.ln, ln1 = hi.ln;
-  const vStar = Number.isFinite(ln0) ? lo.v + (0 - ln0) * (hi.v - lo.v) / (ln1 - ln0) : hi.v;
-  return { breakdownV: vStar, atUm: at, solves, failedAtV: null };
+  if (lo === null || hi === null) return result(null, null, null);
+  return result(logInterpolation(lo, hi), at, null);
+}
+
+/** Where the straight line through (ln V, ln I) at the bracket's ends crosses ln I = 0, V. */
+function logInterpolation(lo: { v: number; ln: number }, hi: { v: number; ln: number }): number {
+  const a = Math.log(lo.v);
+  const b = Math.log(hi.v);
+  return Math.exp(a + ((0 - lo.ln) * (b - a)) / (hi.ln - lo.ln));
 }
